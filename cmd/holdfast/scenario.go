@@ -1,0 +1,56 @@
+package main
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"holdfast/assess"
+	"holdfast/scenarios"
+)
+
+// loadModel loads the scenario named on the command line (a path, or
+// demo:NAME for an embedded demo), applies --set overrides and compiles it.
+// Every error is bad input.
+func loadModel(arg string, sets []string) (*assess.Model, error) {
+	var (
+		s   *scenarios.Scenario
+		err error
+	)
+	if name, ok := strings.CutPrefix(arg, "demo:"); ok {
+		s, err = scenarios.LoadDemo(name)
+	} else {
+		s, err = scenarios.Load(arg)
+	}
+	if err != nil {
+		return nil, badInput(err)
+	}
+	for _, kv := range sets {
+		name, val, ok := strings.Cut(kv, "=")
+		if !ok {
+			return nil, badInput(fmt.Errorf("--set %q: want name=value", kv))
+		}
+		v, perr := strconv.ParseFloat(strings.TrimSpace(val), 64)
+		if perr != nil {
+			return nil, badInput(fmt.Errorf("--set %s: %q is not a number", name, val))
+		}
+		if err := s.Set(strings.TrimSpace(name), v); err != nil {
+			return nil, badInput(fmt.Errorf("--set: %w", err))
+		}
+	}
+	m, err := assess.Compile(s)
+	if err != nil {
+		return nil, badInput(err)
+	}
+	return m, nil
+}
+
+// checkFormat validates a --format value against the allowed ones.
+func checkFormat(format string, allowed ...string) error {
+	for _, a := range allowed {
+		if format == a {
+			return nil
+		}
+	}
+	return badInput(fmt.Errorf("--format %q: want one of %s", format, strings.Join(allowed, ", ")))
+}
