@@ -7,8 +7,8 @@ import (
 
 	"holdfast/assess/expr"
 	"holdfast/assess/steady"
-	"holdfast/scenarios"
 	"holdfast/sample"
+	"holdfast/scenarios"
 )
 
 // Model is a scenario compiled for evaluation: the rate law as an
