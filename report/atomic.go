@@ -1,59 +1,100 @@
 package report
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 )
 
-// WriteFileAtomic writes a file whole or not at all: the content goes to a
-// temporary file in the target's folder, which is synced and then renamed
-// over the target. If write fails, or the target names one of the inputs
-// listed in protect, nothing is left behind. Missing folders are created.
-func WriteFileAtomic(path string, write func(w io.Writer) error, protect ...string) (err error) {
+// Staged is an output file being written: its content goes to a temporary
+// file in the target's folder, and only Commit makes it appear, by an
+// atomic rename after an fsync. Abort (or a failed Commit) removes the
+// temporary file, so a failed or interrupted run leaves no partial output.
+type Staged struct {
+	path string
+	tmp  *os.File
+	done bool
+}
+
+// Stage starts writing the file path. It refuses a path that names one of
+// the inputs in protect (the scenario, a result file being re-rendered),
+// and creates missing folders.
+func Stage(path string, protect ...string) (*Staged, error) {
 	abs, err := filepath.Abs(path)
 	if err != nil {
-		return fmt.Errorf("output %s: %w", path, err)
+		return nil, fmt.Errorf("output %s: %w", path, err)
 	}
 	for _, p := range protect {
-		if p == "" {
-			continue
+		if p != "" && same(abs, p) {
+			return nil, fmt.Errorf("output %s: refusing to overwrite an input file", path)
 		}
-		if same(abs, p) {
-			return fmt.Errorf("output %s: refusing to overwrite an input file", path)
-		}
+	}
+	if fi, err := os.Stat(abs); err == nil && fi.IsDir() {
+		return nil, fmt.Errorf("output %s: is a directory", path)
 	}
 	dir := filepath.Dir(abs)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return fmt.Errorf("output %s: %w", path, err)
+		return nil, fmt.Errorf("output %s: %w", path, err)
 	}
 	tmp, err := os.CreateTemp(dir, "."+filepath.Base(abs)+".tmp-*")
 	if err != nil {
-		return fmt.Errorf("output %s: %w", path, err)
+		return nil, fmt.Errorf("output %s: %w", path, err)
 	}
-	defer func() {
-		if err != nil {
-			tmp.Close()
-			os.Remove(tmp.Name())
-		}
-	}()
-	if err = write(tmp); err != nil {
-		return fmt.Errorf("output %s: %w", path, err)
+	return &Staged{path: abs, tmp: tmp}, nil
+}
+
+// Write writes to the temporary file.
+func (s *Staged) Write(p []byte) (int, error) { return s.tmp.Write(p) }
+
+// Commit syncs the temporary file and renames it over the target.
+func (s *Staged) Commit() error {
+	if s.done {
+		return errors.New("output " + s.path + ": already finished")
 	}
-	if err = tmp.Sync(); err != nil {
-		return fmt.Errorf("output %s: %w", path, err)
+	s.done = true
+	err := s.tmp.Sync()
+	if err == nil {
+		err = s.tmp.Close()
+	} else {
+		s.tmp.Close()
 	}
-	if err = tmp.Close(); err != nil {
-		return fmt.Errorf("output %s: %w", path, err)
+	if err == nil {
+		err = os.Chmod(s.tmp.Name(), 0o644)
 	}
-	if err = os.Chmod(tmp.Name(), 0o644); err != nil {
-		return fmt.Errorf("output %s: %w", path, err)
+	if err == nil {
+		err = os.Rename(s.tmp.Name(), s.path)
 	}
-	if err = os.Rename(tmp.Name(), abs); err != nil {
-		return fmt.Errorf("output %s: %w", path, err)
+	if err != nil {
+		os.Remove(s.tmp.Name())
+		return fmt.Errorf("output %s: %w", s.path, err)
 	}
 	return nil
+}
+
+// Abort discards the temporary file. It is safe to call after Commit (it
+// then does nothing), so callers may defer it.
+func (s *Staged) Abort() {
+	if s == nil || s.done {
+		return
+	}
+	s.done = true
+	s.tmp.Close()
+	os.Remove(s.tmp.Name())
+}
+
+// WriteFileAtomic writes a file whole or not at all through Stage.
+func WriteFileAtomic(path string, write func(w io.Writer) error, protect ...string) error {
+	st, err := Stage(path, protect...)
+	if err != nil {
+		return err
+	}
+	defer st.Abort()
+	if err := write(st); err != nil {
+		return fmt.Errorf("output %s: %w", path, err)
+	}
+	return st.Commit()
 }
 
 // same reports whether two paths name the same existing file.

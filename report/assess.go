@@ -1,0 +1,367 @@
+package report
+
+import (
+	"encoding/csv"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"holdfast/assess"
+)
+
+// AssessJSON is the JSON form of a Monte Carlo result.
+type AssessJSON struct {
+	Tool        string          `json:"tool"`
+	Version     string          `json:"version"`
+	Scenario    string          `json:"scenario"`
+	Title       string          `json:"title"`
+	Draws       int             `json:"draws"`
+	FailedDraws int64           `json:"failed_draws"`
+	Seed        uint64          `json:"seed"`
+	Plan        string          `json:"plan"`
+	Equilibria  []TrackedJSON   `json:"equilibria"`
+	Regimes     []RegimeJSON    `json:"regimes"`
+	Untracked   ProbJSON        `json:"new_equilibria"`
+	Current     *OutcomesJSON   `json:"current,omitempty"`
+	Failures    []CountedJSON   `json:"failures"`
+	Faults      []CountedJSON   `json:"faults"`
+	Convergence ConvergenceJSON `json:"convergence"`
+	Warnings    []string        `json:"warnings"`
+	Caution     string          `json:"caution"`
+}
+
+// QuantilesJSON holds the 5, 25, 50, 75 and 95% quantiles of a figure over
+// the draws where it is defined (n of them); null when n = 0.
+type QuantilesJSON struct {
+	N   int64    `json:"n"`
+	Q5  *float64 `json:"5"`
+	Q25 *float64 `json:"25"`
+	Q50 *float64 `json:"50"`
+	Q75 *float64 `json:"75"`
+	Q95 *float64 `json:"95"`
+}
+
+func quantilesJSON(q assess.Quantiles) QuantilesJSON {
+	return QuantilesJSON{N: q.N, Q5: num(q.Q[0]), Q25: num(q.Q[1]), Q50: num(q.Q[2]), Q75: num(q.Q[3]), Q95: num(q.Q[4])}
+}
+
+// TrackedJSON is one nominal equilibrium followed through the draws.
+type TrackedJSON struct {
+	Label           string        `json:"label"`
+	NominalX        float64       `json:"nominal_x"`
+	NominalClass    string        `json:"nominal_class"`
+	PExists         float64       `json:"p_exists"`
+	PExistsCI       [2]float64    `json:"p_exists_ci"`
+	PAttracting     float64       `json:"p_attracting"`
+	PAttractingCI   [2]float64    `json:"p_attracting_ci"`
+	PSemistable     float64       `json:"p_semistable"`
+	PSemistableCI   [2]float64    `json:"p_semistable_ci"`
+	XQuantiles      QuantilesJSON `json:"x_quantiles"`
+	SlopeQuantiles  QuantilesJSON `json:"slope_quantiles"`
+	ReturnTimeQ     QuantilesJSON `json:"return_time_quantiles"`
+	BasinWidthQ     QuantilesJSON `json:"basin_width_quantiles"`
+	BarrierQuantile QuantilesJSON `json:"barrier_quantiles"`
+}
+
+// ProbJSON is a probability with its 95% interval and counts.
+type ProbJSON struct {
+	P     float64    `json:"p"`
+	CI    [2]float64 `json:"ci"`
+	Count int64      `json:"count"`
+}
+
+func probJSON(p assess.Probability) ProbJSON {
+	return ProbJSON{P: zeroNaN(p.P), CI: [2]float64{zeroNaN(p.CI[0]), zeroNaN(p.CI[1])}, Count: p.Count}
+}
+
+// zeroNaN maps the NaN of an empty sample to 0 for JSON (counts say n = 0).
+func zeroNaN(v float64) float64 {
+	if math.IsNaN(v) {
+		return 0
+	}
+	return v
+}
+
+// RegimeJSON is one ordered pattern of classes.
+type RegimeJSON struct {
+	Pattern []string   `json:"pattern"`
+	P       float64    `json:"p"`
+	CI      [2]float64 `json:"ci"`
+	Count   int64      `json:"count"`
+}
+
+// OutcomesJSON lists where the state goes from the current state.
+type OutcomesJSON struct {
+	X        float64       `json:"x"`
+	Outcomes []OutcomeJSON `json:"outcomes"`
+}
+
+// OutcomeJSON is one destination.
+type OutcomeJSON struct {
+	Label string     `json:"label"`
+	P     float64    `json:"p"`
+	CI    [2]float64 `json:"ci"`
+	Count int64      `json:"count"`
+}
+
+// CountedJSON is a failure or fault reason with its draw count and the
+// first draw indices, for replay.
+type CountedJSON struct {
+	Reason string `json:"reason"`
+	Draws  int64  `json:"draws"`
+	First  []int  `json:"first_draws"`
+}
+
+// ConvergenceJSON reports the batches and the widest 95% half-width.
+type ConvergenceJSON struct {
+	TargetHalfWidth *float64 `json:"target_halfwidth"`
+	Reached         bool     `json:"reached"`
+	Batches         int      `json:"batches"`
+	MaxHalfWidth    float64  `json:"max_halfwidth"`
+}
+
+func countedJSON(cs []assess.Counted) []CountedJSON {
+	out := []CountedJSON{}
+	for _, c := range cs {
+		out = append(out, CountedJSON{Reason: c.Reason, Draws: c.Draws, First: c.First})
+	}
+	return out
+}
+
+// NewAssessJSON converts a Monte Carlo result for JSON output.
+func NewAssessJSON(version, scenario, title string, r *assess.Result) *AssessJSON {
+	out := &AssessJSON{
+		Tool:        "holdfast",
+		Version:     version,
+		Scenario:    scenario,
+		Title:       title,
+		Draws:       r.Draws,
+		FailedDraws: int64(r.Draws) - r.Succeeded,
+		Seed:        r.Seed,
+		Plan:        r.Plan.String(),
+		Equilibria:  []TrackedJSON{},
+		Regimes:     []RegimeJSON{},
+		Untracked:   probJSON(r.Untracked),
+		Failures:    countedJSON(r.Failed),
+		Faults:      countedJSON(r.Faults),
+		Convergence: ConvergenceJSON{
+			TargetHalfWidth: num(r.Convergence.Target),
+			Reached:         r.Convergence.Reached,
+			Batches:         r.Convergence.Batches,
+			MaxHalfWidth:    zeroNaN(r.Convergence.MaxHalfWidth),
+		},
+		Warnings: append([]string{}, r.Warnings...),
+		Caution:  Caution,
+	}
+	if r.Convergence.Target == 0 {
+		out.Convergence.TargetHalfWidth = nil
+	}
+	for _, t := range r.Tracked {
+		class := t.NominalClass.String()
+		if s := t.NominalSide.String(); s != "" {
+			class += "-" + s
+		}
+		e, a, s := probJSON(t.Exists), probJSON(t.Attracting), probJSON(t.Semistable)
+		out.Equilibria = append(out.Equilibria, TrackedJSON{
+			Label: t.Label, NominalX: t.NominalX, NominalClass: class,
+			PExists: e.P, PExistsCI: e.CI,
+			PAttracting: a.P, PAttractingCI: a.CI,
+			PSemistable: s.P, PSemistableCI: s.CI,
+			XQuantiles:      quantilesJSON(t.X),
+			SlopeQuantiles:  quantilesJSON(t.Slope),
+			ReturnTimeQ:     quantilesJSON(t.ReturnTime),
+			BasinWidthQ:     quantilesJSON(t.BasinWidth),
+			BarrierQuantile: quantilesJSON(t.Barrier),
+		})
+	}
+	for _, g := range r.Regimes {
+		p := probJSON(g.P)
+		out.Regimes = append(out.Regimes, RegimeJSON{Pattern: g.Pattern, P: p.P, CI: p.CI, Count: p.Count})
+	}
+	if r.Outcomes != nil {
+		c := &OutcomesJSON{X: r.Nominal.Current.From}
+		for _, o := range r.Outcomes {
+			p := probJSON(o.P)
+			c.Outcomes = append(c.Outcomes, OutcomeJSON{Label: o.Label, P: p.P, CI: p.CI, Count: p.Count})
+		}
+		out.Current = c
+	}
+	return out
+}
+
+// pct formats a probability as a percentage with its interval.
+func pct(p assess.Probability) string {
+	if p.N == 0 {
+		return "–"
+	}
+	return fmt.Sprintf("%s%% (%s–%s)", pc(p.P), pc(p.CI[0]), pc(p.CI[1]))
+}
+
+// pc formats a share in percent with one decimal, keeping shares that
+// round to 0 or 100 distinguishable from exact ones.
+func pc(v float64) string {
+	switch {
+	case v == 0:
+		return "0"
+	case v == 1:
+		return "100"
+	case v < 0.0005:
+		return "<0.1"
+	case v > 0.9995:
+		return ">99.9"
+	}
+	return fmt.Sprintf("%.1f", 100*v)
+}
+
+// AssessTable writes the compact terminal summary of a Monte Carlo result.
+func AssessTable(w io.Writer, title, unit string, r *assess.Result) error {
+	if title != "" {
+		fmt.Fprintf(w, "%s\n", title)
+	}
+	fmt.Fprintf(w, "%d draws (plan %s, seed %d); %d assessed, %d failed. Intervals are 95%%.\n\n",
+		r.Draws, r.Plan, r.Seed, r.Succeeded, int64(r.Draws)-r.Succeeded)
+	if len(r.Tracked) == 0 {
+		fmt.Fprintf(w, "No equilibrium in the domain at nominal values.\n")
+	} else {
+		t := newTable(w)
+		t.Header("", "nominal x*", "nominal class", "exists", "attracting", "x* 5%…95%"+unitSuffix(unit), "median slope")
+		for _, e := range r.Tracked {
+			class := e.NominalClass.String()
+			if s := e.NominalSide.String(); s != "" {
+				class += " from " + s
+			}
+			rng := "–"
+			if e.X.N > 0 {
+				rng = fmt.Sprintf("%s … %s", g(e.X.Q[0]), g(e.X.Q[4]))
+			}
+			if err := t.Append([]string{e.Label, g(e.NominalX), class, pct(e.Exists), pct(e.Attracting), rng, g(e.Slope.Q[2])}); err != nil {
+				return err
+			}
+		}
+		if err := t.Render(); err != nil {
+			return err
+		}
+	}
+	fmt.Fprintf(w, "\nRegimes (classes of all equilibria, low to high):\n")
+	t := newTable(w)
+	t.Header("pattern", "share of draws")
+	for _, g := range r.Regimes {
+		pattern := strings.Join(g.Pattern, " / ")
+		if pattern == "" {
+			pattern = "(no equilibrium)"
+		}
+		if err := t.Append([]string{pattern, pct(g.P)}); err != nil {
+			return err
+		}
+	}
+	if err := t.Render(); err != nil {
+		return err
+	}
+	if r.Untracked.Count > 0 {
+		fmt.Fprintf(w, "Draws with an equilibrium absent at nominal values: %s\n", pct(r.Untracked))
+	}
+	if r.Outcomes != nil {
+		fmt.Fprintf(w, "\nFrom the current state %s%s the state ends at:\n", g(r.Nominal.Current.From), unitSuffix(unit))
+		t := newTable(w)
+		t.Header("destination", "share of draws")
+		for _, o := range r.Outcomes {
+			if err := t.Append([]string{o.Label, pct(o.P)}); err != nil {
+				return err
+			}
+		}
+		if err := t.Render(); err != nil {
+			return err
+		}
+	}
+	for _, c := range r.Failed {
+		fmt.Fprintf(w, "Failed draws: %d × %s (first: %s)\n", c.Draws, c.Reason, ints(c.First))
+	}
+	for _, c := range r.Faults {
+		fmt.Fprintf(w, "Numeric trouble: %d draws with %s (first: %s)\n", c.Draws, c.Reason, ints(c.First))
+	}
+	if c := r.Convergence; c.Target > 0 {
+		state := "reached"
+		if !c.Reached {
+			state = "NOT reached (draw limit hit)"
+		}
+		fmt.Fprintf(w, "Convergence: target half-width %g %s after %d batches; widest half-width %.4g\n", c.Target, state, c.Batches, c.MaxHalfWidth)
+	}
+	for _, msg := range r.Warnings {
+		fmt.Fprintf(w, "Warning: %s\n", msg)
+	}
+	fmt.Fprintf(w, "\n%s\n", Caution)
+	return nil
+}
+
+func ints(v []int) string {
+	s := make([]string, len(v))
+	for i, x := range v {
+		s[i] = strconv.Itoa(x)
+	}
+	return strings.Join(s, ", ")
+}
+
+// DrawsCSV streams per-draw records as CSV: the draw index, every
+// parameter, then each tracked equilibrium's existence, position and class,
+// the regime pattern, the destination from the current state and a failure
+// reason.
+type DrawsCSV struct {
+	w      *csv.Writer
+	row    []string
+	header bool
+	names  []string
+	labels []string
+}
+
+// NewDrawsCSV returns a writer for the given parameter names and tracked
+// labels.
+func NewDrawsCSV(w io.Writer, names, labels []string) *DrawsCSV {
+	return &DrawsCSV{w: csv.NewWriter(w), names: names, labels: labels}
+}
+
+// Write writes one block of records (the engine's Sink).
+func (d *DrawsCSV) Write(block []assess.Draw) error {
+	if !d.header {
+		h := []string{"draw"}
+		h = append(h, d.names...)
+		for _, l := range d.labels {
+			h = append(h, l+"_exists", l+"_x", l+"_class")
+		}
+		h = append(h, "regime", "destination", "failed")
+		if err := d.w.Write(h); err != nil {
+			return err
+		}
+		d.header = true
+	}
+	for i := range block {
+		r := &block[i]
+		d.row = append(d.row[:0], strconv.Itoa(r.Index))
+		for _, v := range r.Theta {
+			d.row = append(d.row, strconv.FormatFloat(v, 'g', -1, 64))
+		}
+		for k := range d.labels {
+			if k >= len(r.Tracked) || !r.Tracked[k].Exists {
+				d.row = append(d.row, "0", "", "")
+				continue
+			}
+			t := r.Tracked[k]
+			class := t.Class.String()
+			if s := t.Side.String(); s != "" {
+				class += "-" + s
+			}
+			d.row = append(d.row, "1", strconv.FormatFloat(t.X, 'g', -1, 64), class)
+		}
+		classes := make([]string, len(r.Pattern))
+		for j, c := range r.Pattern {
+			classes[j] = c.String()
+		}
+		d.row = append(d.row, strings.Join(classes, "/"), r.Outcome, r.Failed)
+		if err := d.w.Write(d.row); err != nil {
+			return err
+		}
+	}
+	d.w.Flush()
+	return d.w.Error()
+}
