@@ -1,0 +1,228 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// holdfast runs the command line in-process and returns stdout, stderr and
+// the exit status.
+func holdfast(t *testing.T, args ...string) (string, string, int) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := run(args, &out, &errb)
+	return out.String(), errb.String(), code
+}
+
+// noTrace fails when output looks like a Go panic or stack trace.
+func noTrace(t *testing.T, s string) {
+	t.Helper()
+	for _, bad := range []string{"panic:", "goroutine ", ".go:", "runtime."} {
+		if strings.Contains(s, bad) {
+			t.Errorf("output contains %q:\n%s", bad, s)
+		}
+	}
+}
+
+func TestBadCatalogueThroughCommands(t *testing.T) {
+	// Every malformed scenario in testdata/bad, through each command that
+	// reads scenarios: exit status 2, the expected first error line, no
+	// stack trace, nothing on stdout, no file written.
+	dir, err := filepath.Abs(filepath.Join("..", "..", "testdata", "bad"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Chdir(dir)
+	files, _ := filepath.Glob("*.yaml")
+	if len(files) < 40 {
+		t.Fatalf("catalogue holds %d cases", len(files))
+	}
+	outDir := t.TempDir()
+	for _, file := range files {
+		raw, err := os.ReadFile(strings.TrimSuffix(file, ".yaml") + ".want")
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := "holdfast: " + strings.TrimRight(string(raw), "\n")
+		for _, cmd := range [][]string{
+			{"equilibria", file},
+			{"assess", file, "--draws", "10", "--out", filepath.Join(outDir, "r.json"), "--draws-csv", filepath.Join(outDir, "d.csv")},
+		} {
+			stdout, stderr, code := holdfast(t, cmd...)
+			if code != exitBad {
+				t.Errorf("%v: exit %d, want 2\n%s", cmd, code, stderr)
+			}
+			if first, _, _ := strings.Cut(stderr, "\n"); first != want {
+				t.Errorf("%v:\n got: %s\nwant: %s", cmd, first, want)
+			}
+			if stdout != "" {
+				t.Errorf("%v: wrote to stdout: %q", cmd, stdout)
+			}
+			noTrace(t, stderr)
+		}
+	}
+	if left, _ := os.ReadDir(outDir); len(left) != 0 {
+		t.Errorf("bad input left files behind: %v", left)
+	}
+}
+
+func TestBadFlags(t *testing.T) {
+	// Usage errors: exit 2 with a message naming the flag, no file written.
+	outDir := t.TempDir()
+	out := filepath.Join(outDir, "r.json")
+	cases := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"assess", "demo:lake", "--draws", "0", "--out", out}, "--draws"},
+		{[]string{"assess", "demo:lake", "--draws", "ten", "--out", out}, "--draws"},
+		{[]string{"assess", "demo:lake", "--seed", "-3", "--out", out}, "--seed"},
+		{[]string{"assess", "demo:lake", "--plan", "grid", "--out", out}, "--plan"},
+		{[]string{"assess", "demo:lake", "--set", "Z=1", "--out", out}, `unknown parameter "Z"`},
+		{[]string{"assess", "demo:lake", "--set", "L=abc", "--out", out}, "not a number"},
+		{[]string{"assess", "demo:lake", "--set", "L", "--out", out}, "name=value"},
+		{[]string{"assess", "demo:lake", "--format", "xml", "--out", out}, "--format"},
+		{[]string{"assess", "demo:lake", "--until-halfwidth", "0.7", "--out", out}, "--until-halfwidth"},
+		{[]string{"assess", "demo:lake", "--workers", "-1", "--out", out}, "--workers"},
+		{[]string{"assess", "demo:nosuch", "--out", out}, "nosuch"},
+		{[]string{"assess", "demo:lake", "--out", outDir}, "directory"},
+		{[]string{"equilibria"}, "arg"},
+		{[]string{"equilibria", "no-such-file.yaml"}, "no-such-file.yaml"},
+		{[]string{"equilibria", "demo:lake", "--set", "s=NaN"}, "finite"},
+		{[]string{"nosuchcommand"}, "unknown command"},
+	}
+	for _, c := range cases {
+		_, stderr, code := holdfast(t, c.args...)
+		if code != exitBad {
+			t.Errorf("%v: exit %d, want 2 (%s)", c.args, code, stderr)
+		}
+		if !strings.Contains(stderr, c.want) {
+			t.Errorf("%v: message %q does not mention %q", c.args, stderr, c.want)
+		}
+		noTrace(t, stderr)
+	}
+	if left, _ := os.ReadDir(outDir); len(left) != 0 {
+		t.Errorf("bad flags left files behind: %v", left)
+	}
+}
+
+func TestEquilibriaDemos(t *testing.T) {
+	for _, demo := range []string{"lake", "fishery", "reactor", "tank"} {
+		stdout, stderr, code := holdfast(t, "equilibria", "demo:"+demo)
+		if code != 0 {
+			t.Fatalf("%s: exit %d: %s", demo, code, stderr)
+		}
+		if !strings.Contains(stdout, "qualified expert") {
+			t.Errorf("%s: table lacks the caution notice", demo)
+		}
+	}
+}
+
+func TestEquilibriaJSONShape(t *testing.T) {
+	stdout, stderr, code := holdfast(t, "equilibria", "demo:lake", "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var doc struct {
+		Equilibria []map[string]any `json:"equilibria"`
+		Current    map[string]any   `json:"current"`
+		Caution    string           `json:"caution"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if len(doc.Equilibria) != 3 {
+		t.Fatalf("lake demo: %d equilibria, want 3", len(doc.Equilibria))
+	}
+	for _, key := range []string{"x", "slope", "class", "order", "attracts_from", "return_time", "basin"} {
+		if _, ok := doc.Equilibria[0][key]; !ok {
+			t.Errorf("equilibrium lacks %q", key)
+		}
+	}
+	for _, key := range []string{"x", "moves_to", "time_to_1pct"} {
+		if _, ok := doc.Current[key]; !ok {
+			t.Errorf("current lacks %q", key)
+		}
+	}
+	if doc.Current["moves_to"] != "E3" {
+		t.Errorf("lake demo from 1.2 moves to %v, want E3 (the demo's threshold is at 1)", doc.Current["moves_to"])
+	}
+	if doc.Caution == "" {
+		t.Error("JSON lacks the caution")
+	}
+}
+
+func TestSetOverrides(t *testing.T) {
+	// Lake demo with the loading raised well past the upper fold: only the
+	// turbid state remains (Carpenter, Ludwig & Brock 1999: the clear state
+	// is lost beyond the fold in loading).
+	stdout, stderr, code := holdfast(t, "equilibria", "demo:lake", "--set", "L=0.3", "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var doc struct {
+		Equilibria []struct {
+			X     float64 `json:"x"`
+			Class string  `json:"class"`
+		} `json:"equilibria"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if len(doc.Equilibria) != 1 || doc.Equilibria[0].Class != "stable" || doc.Equilibria[0].X < 1 {
+		t.Errorf("L=0.3: got %+v, want one stable turbid state", doc.Equilibria)
+	}
+}
+
+func TestAssessDeterministicAcrossWorkers(t *testing.T) {
+	// Draw i depends only on (seed, i): the same JSON for 1 and 8 workers.
+	var outs []string
+	for _, w := range []string{"1", "8"} {
+		stdout, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "3000", "--seed", "11", "--workers", w, "--format", "json")
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		outs = append(outs, stdout)
+	}
+	if outs[0] != outs[1] {
+		t.Error("JSON differs between 1 and 8 workers")
+	}
+}
+
+func TestAssessWritesFiles(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "sub", "lake.json")
+	csvPath := filepath.Join(dir, "draws.csv")
+	_, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "500", "--out", out, "--draws-csv", csvPath, "--quiet")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	raw, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc map[string]any
+	if err := json.Unmarshal(raw, &doc); err != nil {
+		t.Fatal(err)
+	}
+	for _, key := range []string{"draws", "failed_draws", "seed", "plan", "equilibria", "regimes", "current"} {
+		if _, ok := doc[key]; !ok {
+			t.Errorf("result lacks %q", key)
+		}
+	}
+	rows, err := os.ReadFile(csvPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := strings.Count(string(rows), "\n"); n != 501 {
+		t.Errorf("draws CSV has %d lines, want header + 500", n)
+	}
+	left, _ := filepath.Glob(filepath.Join(dir, ".*tmp*"))
+	if len(left) != 0 {
+		t.Errorf("temporary files left: %v", left)
+	}
+}
