@@ -1,0 +1,185 @@
+package expr
+
+import (
+	"math"
+	"math/big"
+	"math/rand/v2"
+	"testing"
+)
+
+// boundCases exercise every instruction of the Taylor back end.
+var boundCases = []struct {
+	rate    string
+	defines []Define
+	xlo     float64 // x is drawn from [xlo, xhi]
+	xhi     float64
+}{
+	{rate: "a - b*x + x^2/(1+x^2)", xlo: -2, xhi: 3},             // shallow lake (Carpenter et al. 1999)
+	{rate: "a*x*(1-x/b)", xlo: -2, xhi: 3},                       // logistic (Verhulst)
+	{rate: "a*exp(x) - x", xlo: -2, xhi: 3},                      // Semenov
+	{rate: "c*x^q/(b^q + x^q)", xlo: 0.05, xhi: 3},               // Hill term, parameter exponent
+	{rate: "a - b*x + c*x^q/(1 + x^q)", xlo: 0.05, xhi: 3},       // lake with Hill exponent
+	{rate: "exp(sin(x)*a) - log(1+x^2)", xlo: -3, xhi: 3},        //
+	{rate: "sqrt(x^2+a) * cos(b*x)", xlo: -3, xhi: 3},            //
+	{rate: "tan(x/3) + atan(a*x - 1)", xlo: -3, xhi: 3},          //
+	{rate: "sinh(x/2) - cosh(x/3) + tanh(a*x)", xlo: -3, xhi: 3}, //
+	{rate: "log10(x^2 + 1)*0.1 + pi*e*x^3", xlo: -3, xhi: 3},     //
+	{rate: "pow(x+2, a) - x^-3", xlo: -1.5, xhi: 3},              //
+	{rate: "(x+3)^(x/2) + 2^x*0.3 + e^x", xlo: -2, xhi: 3},       // exponent depends on x
+	{rate: "abs(x - a) + min(x, b) - max(x^2, c)", xlo: -2, xhi: 3},
+	{rate: "1/(x - 1.1) + x^7 - 3*x^5 + 0.1*x^64", xlo: -1, xhi: 1},
+	{rate: "exp(-x^2/2)/sqrt(2*pi)", xlo: -3, xhi: 3},
+	{rate: "x^2.5 + x^-1.5 + sqrt(x)", xlo: 0.01, xhi: 3},
+	{rate: "h*g + exp(-g)", defines: []Define{{"g", "a*x/(1+x)"}, {"h", "g^2 - b"}}, xlo: 0, xhi: 3},
+	{rate: "sin(50*x) + cos(x*1e3)/1e3 + tan(x)", xlo: -1.5, xhi: 1.5},
+	{rate: "exp(30*x) - exp(29.9*x)", xlo: -1, xhi: 1}, // cancellation
+	{rate: "(x - 1)^3 * (a - x)^2", xlo: 0, xhi: 2},
+}
+
+// TestTaylorErrorBound checks e[k] ≥ |c[k] − exact| for random inputs, the
+// exact coefficients from a math/big evaluation at 400 bits (bigref_test.go).
+func TestTaylorErrorBound(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 11))
+	const draws = 150
+	for _, tc := range boundCases {
+		env := Env{State: "x", Params: []string{"a", "b", "c", "q"}, Defines: tc.defines}
+		p, err := Compile(tc.rate, env)
+		if err != nil {
+			t.Fatalf("%s: %v", tc.rate, err)
+		}
+		m := p.NewMachine()
+		c, e := make([]float64, MaxOrder+1), make([]float64, MaxOrder+1)
+		checked, worst := 0, 0.0
+		for i := 0; i < draws; i++ {
+			x := tc.xlo + (tc.xhi-tc.xlo)*rng.Float64()
+			theta := []float64{0.1 + 1.9*rng.Float64(), 0.1 + 1.9*rng.Float64(), 0.1 + 1.9*rng.Float64(), 1 + 4*rng.Float64()}
+			m.Taylor(x, theta, c, e)
+			ref, err := refTaylor(p, x, theta, MaxOrder)
+			if err != nil {
+				continue
+			}
+			for k := range c {
+				if math.IsInf(e[k], 1) {
+					continue
+				}
+				diff := new(big.Float).SetPrec(refPrec).Sub(bf(c[k]), ref[k])
+				diff.Abs(diff)
+				df, _ := diff.Float64()
+				if df > e[k]+refTol(ref[k]) {
+					rf, _ := ref[k].Float64()
+					t.Errorf("%s at x=%v θ=%v: c[%d] = %v, exact %v, error %.3g > bound %.3g",
+						tc.rate, x, theta, k, c[k], rf, df, e[k])
+				}
+				if e[k] > 0 && df > 0 {
+					worst = math.Max(worst, df/e[k])
+				}
+				checked++
+			}
+		}
+		if checked < draws {
+			t.Errorf("%s: only %d coefficients checked", tc.rate, checked)
+		}
+		t.Logf("%-45s %5d coefficients, largest error/bound %.3g", tc.rate, checked, worst)
+	}
+}
+
+// randomExpr builds a random rate-law source over x, a, b, q with every
+// operator and function of the language.
+func randomExpr(rng *rand.Rand, depth int) string {
+	if depth == 0 || rng.IntN(4) == 0 {
+		switch rng.IntN(6) {
+		case 0, 1:
+			return "x"
+		case 2:
+			return "a"
+		case 3:
+			return "b"
+		case 4:
+			return []string{"0.3", "2", "1.5e-1", "pi", "e", "7"}[rng.IntN(6)]
+		}
+		return "(x - b)"
+	}
+	sub := func() string { return randomExpr(rng, depth-1) }
+	switch rng.IntN(12) {
+	case 0:
+		return "(" + sub() + " + " + sub() + ")"
+	case 1:
+		return "(" + sub() + " - " + sub() + ")"
+	case 2, 3:
+		return sub() + "*" + sub()
+	case 4:
+		return sub() + "/(1 + " + sub() + "^2)"
+	case 5:
+		return "(" + sub() + ")^" + []string{"2", "3", "-1", "q", "0.5", "1.7"}[rng.IntN(6)]
+	case 6:
+		return "-" + sub()
+	case 7:
+		f := []string{"exp", "sin", "cos", "atan", "tanh", "sinh", "cosh", "tan"}[rng.IntN(8)]
+		return f + "(" + sub() + "/4)"
+	case 8:
+		f := []string{"log", "log10", "sqrt"}[rng.IntN(3)]
+		return f + "(1 + " + sub() + "^2)"
+	case 9:
+		f := []string{"min", "max", "pow"}[rng.IntN(3)]
+		if f == "pow" {
+			return "pow(1 + " + sub() + "^2, " + sub() + "/3)"
+		}
+		return f + "(" + sub() + ", " + sub() + ")"
+	case 10:
+		return "abs(" + sub() + ")"
+	}
+	return sub() + " - " + sub()
+}
+
+// TestTaylorErrorBoundRandom repeats the check of TestTaylorErrorBound on
+// random expressions against the same math/big reference.
+func TestTaylorErrorBoundRandom(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 5))
+	env := Env{State: "x", Params: []string{"a", "b", "q"}}
+	n := 300
+	if testing.Short() {
+		n = 60
+	}
+	c, e := make([]float64, MaxOrder+1), make([]float64, MaxOrder+1)
+	checked := 0
+	for i := 0; i < n; i++ {
+		src := randomExpr(rng, 4)
+		p, err := Compile(src, env)
+		if err != nil {
+			t.Fatalf("%s: %v", src, err)
+		}
+		m := p.NewMachine()
+		for j := 0; j < 4; j++ {
+			x := -2 + 4*rng.Float64()
+			theta := []float64{-1 + 3*rng.Float64(), 0.1 + 2*rng.Float64(), 0.5 + 3*rng.Float64()}
+			m.Taylor(x, theta, c, e)
+			ref, err := refTaylor(p, x, theta, MaxOrder)
+			if err != nil {
+				continue
+			}
+			for k := range c {
+				if math.IsInf(e[k], 1) || math.IsNaN(c[k]) {
+					continue
+				}
+				diff := new(big.Float).SetPrec(refPrec).Sub(bf(c[k]), ref[k])
+				df, _ := diff.Abs(diff).Float64()
+				if df > e[k]+refTol(ref[k]) {
+					t.Errorf("%s at x=%v θ=%v: c[%d] = %v, error %.3g > bound %.3g", src, x, theta, k, c[k], df, e[k])
+				}
+				checked++
+			}
+		}
+	}
+	if checked < n {
+		t.Errorf("only %d coefficients checked", checked)
+	}
+	t.Logf("%d coefficients checked", checked)
+}
+
+// refTol allows for the reference's own rounding (about 2^-400 relative per
+// operation, accumulated over recurrences whose terms may cancel): 2^-300
+// relative to max(1, |ref|).
+func refTol(ref *big.Float) float64 {
+	r, _ := ref.Float64()
+	return 0x1p-300 * math.Max(1, math.Abs(r))
+}

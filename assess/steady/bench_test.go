@@ -1,0 +1,174 @@
+package steady
+
+import (
+	"math"
+	"testing"
+)
+
+// Illustrative shallow-lake setting with three equilibria (a inside the
+// window between the folds for b = 0.52).
+const benchA, benchB = 0.06, 0.52
+
+// nativeLake is the shallow-lake law written directly in Go.
+func nativeLake(p float64) float64 { return benchA - benchB*p + p*p/(1+p*p) }
+
+// brent is Brent's (1973) zero-finder ("zeroin") for a bracket [a, b] with
+// f(a) f(b) < 0: inverse quadratic interpolation, secant and bisection.
+func brent(f func(float64) float64, a, b, fa, fb, tol float64) (float64, int) {
+	evals := 0
+	c, fc := a, fa
+	d := b - a
+	e := d
+	for it := 0; it < 100; it++ {
+		if (fb > 0) == (fc > 0) {
+			c, fc = a, fa
+			d = b - a
+			e = d
+		}
+		if math.Abs(fc) < math.Abs(fb) {
+			a, b, c = b, c, b
+			fa, fb, fc = fb, fc, fb
+		}
+		tol1 := 2*0x1p-52*math.Abs(b) + 0.5*tol
+		xm := 0.5 * (c - b)
+		if math.Abs(xm) <= tol1 || fb == 0 {
+			return b, evals
+		}
+		if math.Abs(e) >= tol1 && math.Abs(fa) > math.Abs(fb) {
+			s := fb / fa
+			var p, q float64
+			if a == c {
+				p = 2 * xm * s
+				q = 1 - s
+			} else {
+				q = fa / fc
+				r := fb / fc
+				p = s * (2*xm*q*(q-r) - (b-a)*(r-1))
+				q = (q - 1) * (r - 1) * (s - 1)
+			}
+			if p > 0 {
+				q = -q
+			}
+			p = math.Abs(p)
+			if 2*p < math.Min(3*xm*q-math.Abs(tol1*q), math.Abs(e*q)) {
+				e = d
+				d = p / q
+			} else {
+				d = xm
+				e = d
+			}
+		} else {
+			d = xm
+			e = d
+		}
+		a, fa = b, fb
+		if math.Abs(d) > tol1 {
+			b += d
+		} else {
+			b += math.Copysign(tol1, xm)
+		}
+		fb = f(b)
+		evals++
+	}
+	return b, evals
+}
+
+// nativeScanBrent is the plain reference: f on a 200-point grid, Brent in
+// every cell with a sign change.
+func nativeScanBrent(f func(float64) float64, lo, hi float64, roots []float64) ([]float64, int) {
+	const n = 200
+	roots = roots[:0]
+	h := (hi - lo) / (n - 1)
+	x0 := lo
+	f0 := f(x0)
+	evals := 1
+	for i := 1; i < n; i++ {
+		x1 := lo + float64(i)*h
+		f1 := f(x1)
+		evals++
+		switch {
+		case f0 == 0:
+			roots = append(roots, x0)
+		case f0*f1 < 0:
+			r, k := brent(f, x0, x1, f0, f1, 1e-12*math.Max(1, math.Abs(x0)))
+			evals += k
+			roots = append(roots, r)
+		}
+		x0, f0 = x1, f1
+	}
+	if f0 == 0 {
+		roots = append(roots, x0)
+	}
+	return roots, evals
+}
+
+func BenchmarkNativeScanBrent(b *testing.B) {
+	roots := make([]float64, 0, 8)
+	evals := 0
+	for b.Loop() {
+		roots, evals = nativeScanBrent(nativeLake, 0, 3, roots)
+	}
+	if len(roots) != 3 {
+		b.Fatalf("native reference found %d roots, want 3", len(roots))
+	}
+	b.ReportMetric(float64(evals), "evals/op")
+}
+
+func benchFind(b *testing.B, opt Options) {
+	fz, err := NewFinder(opt)
+	if err != nil {
+		b.Fatal(err)
+	}
+	var f Func = lakeFunc{benchA, benchB}
+	var res *Result
+	b.ReportAllocs()
+	for b.Loop() {
+		res, err = fz.Find(f, 0, 3)
+		if err != nil {
+			b.Fatal(err)
+		}
+	}
+	if len(res.Equilibria) != 3 {
+		b.Fatalf("Find found %d equilibria, want 3", len(res.Equilibria))
+	}
+	b.ReportMetric(float64(res.Evals), "evals/op")
+	b.ReportMetric(float64(res.TaylorCalls), "taylor/op")
+	b.ReportMetric(float64(res.TaylorTerms), "terms/op")
+}
+
+// BenchmarkFind is the full call: equilibria, classes, basins, barriers.
+func BenchmarkFind(b *testing.B) { benchFind(b, DefaultOptions()) }
+
+// BenchmarkFindNoBarriers skips the barrier quadrature.
+func BenchmarkFindNoBarriers(b *testing.B) {
+	opt := DefaultOptions()
+	opt.NoBarriers = true
+	benchFind(b, opt)
+}
+
+// The cost of one Eval and of Taylor orders 2 and 7 of the benchmark law,
+// to convert the counts above into evaluation equivalents.
+func BenchmarkLakeEval(b *testing.B) {
+	f := lakeFunc{benchA, benchB}
+	x, s := 0.3, 0.0
+	for b.Loop() {
+		s += f.Eval(x)
+	}
+	_ = s
+}
+
+func BenchmarkLakeTaylor3(b *testing.B) {
+	f := lakeFunc{benchA, benchB}
+	var c, e [3]float64
+	for b.Loop() {
+		f.Taylor(0.3, c[:], e[:])
+	}
+}
+
+func BenchmarkLakeTaylor8(b *testing.B) {
+	f := lakeFunc{benchA, benchB}
+	var c, e [8]float64
+	for b.Loop() {
+		f.Taylor(0.3, c[:], e[:])
+	}
+}
