@@ -6,8 +6,8 @@ import (
 	"sync"
 	"testing"
 
-	"holdfast/scenarios"
 	"holdfast/sample"
+	"holdfast/scenarios"
 )
 
 // The lake demo's rate law written directly in Go, with its derivative:

@@ -2,16 +2,16 @@ package assess
 
 import (
 	"context"
-	"fmt"
 	"errors"
+	"fmt"
 	"math"
 	"reflect"
 	"testing"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
-	"holdfast/scenarios"
 	"holdfast/sample"
+	"holdfast/scenarios"
 )
 
 func mustModel(t testing.TB, src string) *Model {

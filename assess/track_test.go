@@ -5,8 +5,8 @@ import (
 	"testing"
 
 	"holdfast/assess/steady"
-	"holdfast/scenarios"
 	"holdfast/sample"
+	"holdfast/scenarios"
 )
 
 // denseFollow is a brute-force reference for tracker.follow: natural
@@ -53,7 +53,7 @@ func TestTrackerAgreesWithDenseContinuation(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		d, err := m.Design(sample.Random, 600, 7)
+		d, err := m.Design(sample.Random, 300, 7)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -62,7 +62,7 @@ func TestTrackerAgreesWithDenseContinuation(t *testing.T) {
 		tr := tracker{f: m.Func(work), th0: m.Nominal, th1: theta, lo: m.Domain[0], hi: m.Domain[1]}
 		scale := isolation(nom.Equilibria, m.Domain)
 		disagree := 0
-		for i := 0; i < 600; i++ {
+		for i := 0; i < 300; i++ {
 			d.Draw(i, theta)
 			for k, e := range nom.Equilibria {
 				if e.Order != 1 || e.Class == steady.Degenerate {
