@@ -22,7 +22,8 @@ var binom = [MaxTaylor][MaxTaylor]float64{
 const (
 	noteTouch = "touching root: f reaches zero within its error bound without a resolvable sign change " +
 		"(a double root, or a close pair or near miss that floating point cannot resolve)"
-	noteSpan = "f vanishes identically (within its error bound) on Span"
+	noteSpan  = "f vanishes identically (within its error bound) on Span"
+	noteRough = "Taylor coefficients of f are not finite at this root: the derivative test cannot decide"
 )
 
 // classify applies the derivative test of DESIGN.md to a candidate.
@@ -36,7 +37,7 @@ func (fz *Finder) classify(cd *cand) {
 	if cd.data && !cd.touch {
 		c, e := &cd.c, &cd.e
 		if finite(c[0]) && finite(c[1]) && finite(c[2]) && finite(e[0]) && finite(e[1]) && finite(e[2]) && c[1] != 0 {
-			d := math.Max(cd.dloc, (math.Abs(c[0])+e[0])/math.Abs(c[1]))
+			d := fmax(cd.dloc, (math.Abs(c[0])+e[0])/math.Abs(c[1]))
 			thr := e[1] + 4*(math.Abs(c[2])+e[2])*d
 			if math.Abs(c[1]) > 4*thr {
 				cd.order, cd.side, cd.slope, cd.delta = 1, None, c[1], d
@@ -55,12 +56,12 @@ func (fz *Finder) classify(cd *cand) {
 	for k := 1; k < MaxTaylor; k++ {
 		ak := math.Abs(c[k])
 		if ak > e[k] && finite(ak) && finite(a0) {
-			dd = math.Min(dd, math.Pow(a0/ak, 1/float64(k)))
+			dd = fmin(dd, math.Pow(a0/ak, 1/float64(k)))
 		}
 	}
 	d := cd.dloc
 	if finite(dd) {
-		d = math.Max(d, dd)
+		d = fmax(d, dd)
 	}
 	var tail [MaxTaylor]float64
 	n := deciding(&c, &e, &tail, 2*d)
@@ -68,7 +69,7 @@ func (fz *Finder) classify(cd *cand) {
 		// The coefficients beyond c_7 are unknown; bound their effect on
 		// c_k from Taylor data at x* ± η: what the known terms do not
 		// explain is the tail, which scales at least as η^(8−k).
-		eta := math.Max(4*d, 1e-3*fz.h0)
+		eta := fmax(4*d, 1e-3*fz.h0)
 		for _, dir := range [2]float64{-1, 1} {
 			xs := cd.x + dir*eta
 			if xs < fz.lo || xs > fz.hi {
@@ -84,7 +85,7 @@ func (fz *Finder) classify(cd *cand) {
 				}
 				r := math.Abs(fz.c[k]-known) * math.Pow(2*d/eta, float64(MaxTaylor-k))
 				if finite(r) {
-					tail[k] = math.Max(tail[k], r)
+					tail[k] = fmax(tail[k], r)
 				}
 			}
 		}
@@ -94,6 +95,9 @@ func (fz *Finder) classify(cd *cand) {
 	switch {
 	case n == 0:
 		cd.cls = Degenerate
+		for k := 1; k < MaxTaylor; k++ {
+			cd.rough = cd.rough || math.IsNaN(c[k])
+		}
 	case n%2 == 1 && c[n] < 0:
 		cd.cls = Stable
 	case n%2 == 1:
@@ -165,15 +169,9 @@ func (fz *Finder) assemble() {
 		}
 	}
 	fz.cands = keep
-	slices.SortFunc(fz.cands, func(a, b cand) int {
-		switch {
-		case a.span[0] < b.span[0]:
-			return -1
-		case a.span[0] > b.span[0]:
-			return 1
-		}
-		return 0
-	})
+	if !slices.IsSortedFunc(fz.cands, cmpCand) {
+		slices.SortStableFunc(fz.cands, cmpCand)
+	}
 	lastDeg := math.Inf(-1)
 	for i := range fz.cands {
 		cd := &fz.cands[i]
@@ -192,21 +190,16 @@ func (fz *Finder) assemble() {
 			lastDeg = cd.span[1]
 		}
 	}
-	slices.SortStableFunc(fz.cands, func(a, b cand) int {
-		switch {
-		case a.span[0] < b.span[0]:
-			return -1
-		case a.span[0] > b.span[0]:
-			return 1
-		}
-		return 0
-	})
+	if !math.IsInf(lastDeg, -1) {
+		// A span search moved a candidate's lower edge.
+		slices.SortStableFunc(fz.cands, cmpCand)
+	}
 	out := fz.cands[:0]
 	for _, cd := range fz.cands {
 		if k := len(out); k > 0 {
 			last := &out[k-1]
 			gap := cd.span[0] - last.span[1]
-			if gap <= math.Max(last.delta, cd.delta)+fz.tol(cd.x) {
+			if gap <= fmax(last.delta, cd.delta)+fz.tol(cd.x) {
 				mergeCand(last, &cd)
 				continue
 			}
@@ -218,22 +211,32 @@ func (fz *Finder) assemble() {
 	fz.phaseLine()
 }
 
+func cmpCand(a, b cand) int {
+	switch {
+	case a.span[0] < b.span[0]:
+		return -1
+	case a.span[0] > b.span[0]:
+		return 1
+	}
+	return 0
+}
+
 // mergeCand folds b into a (duplicates of one equilibrium).
 func mergeCand(a, b *cand) {
 	if a.cls == Degenerate || b.cls == Degenerate {
-		a.span[0] = math.Min(a.span[0], b.span[0])
-		a.span[1] = math.Max(a.span[1], b.span[1])
+		a.span[0] = fmin(a.span[0], b.span[0])
+		a.span[1] = fmax(a.span[1], b.span[1])
 		a.x = 0.5 * (a.span[0] + a.span[1])
 		a.cls, a.order, a.side, a.slope = Degenerate, 0, None, 0
 		a.cont = a.cont || b.cont
-		a.delta = math.Max(a.delta, b.delta)
+		a.delta = fmax(a.delta, b.delta)
 		return
 	}
 	keepB := b.touch && !a.touch
 	if a.touch == b.touch {
 		keepB = a.data && b.data && math.Abs(b.c[0]) < math.Abs(a.c[0])
 	}
-	d := math.Max(a.delta, b.delta)
+	d := fmax(a.delta, b.delta)
 	if keepB {
 		*a = *b
 	}
@@ -254,7 +257,7 @@ func (fz *Finder) tidySingular() {
 	u := fz.undef[:0]
 	for _, iv := range fz.undef {
 		if k := len(u); k > 0 && iv.Lo <= u[k-1].Hi+2*fz.tol(iv.Lo) {
-			u[k-1].Hi = math.Max(u[k-1].Hi, iv.Hi)
+			u[k-1].Hi = fmax(u[k-1].Hi, iv.Hi)
 			continue
 		}
 		u = append(u, iv)
@@ -366,6 +369,8 @@ func (fz *Finder) equilibrium(cd *cand, k int) Equilibrium {
 		eq.ReturnTime = 1 / math.Abs(cd.slope)
 	}
 	switch {
+	case cd.rough:
+		eq.Note = noteRough
 	case cd.touch:
 		eq.Note = noteTouch
 	case cd.cls == Degenerate && cd.span[1]-cd.span[0] > 2*fz.tol(cd.x):
@@ -532,7 +537,12 @@ func (fz *Finder) adapt(a, b, whole, absTol float64, depth int) float64 {
 		return s
 	}
 	if depth >= 12 || fz.over() {
-		fz.warnf("barrier quadrature on [%.6g, %.6g] did not reach its tolerance", a, b)
+		// Only a panel whose own error estimate exceeds the tolerance of
+		// the whole integral is worth a warning (an endpoint singularity
+		// of f' leaves tiny panels that converge slowly but harmlessly).
+		if math.Abs(s-whole) > absTol*float64(uint(1)<<depth) {
+			fz.warnf("barrier quadrature on [%.6g, %.6g] did not reach its tolerance", a, b)
+		}
 		return s
 	}
 	return fz.adapt(a, m, l, absTol/2, depth+1) + fz.adapt(m, b, r, absTol/2, depth+1)

@@ -172,3 +172,82 @@ func BenchmarkLakeTaylor8(b *testing.B) {
 		f.Taylor(0.3, c[:], e[:])
 	}
 }
+
+// The same comparison on a costlier law, the shallow lake with a Hill
+// recycling term L − sP + rP^q/(m^q + P^q) (illustrative parameters,
+// three equilibria on [0.05, 3]): one Eval costs a math.Pow, as evaluating
+// a compiled rate law costs more than a native Go expression.
+var benchHill = hillLake{L: 0.05, s: 0.5, r: 1, mq: 1, q: 4.3}
+
+func BenchmarkNativeScanBrentHill(b *testing.B) {
+	roots := make([]float64, 0, 8)
+	evals := 0
+	for b.Loop() {
+		roots, evals = nativeScanBrent(benchHill.Eval, 0.05, 3, roots)
+	}
+	if len(roots) != 3 {
+		b.Fatalf("native reference found %d roots, want 3", len(roots))
+	}
+	b.ReportMetric(float64(evals), "evals/op")
+}
+
+func BenchmarkFindHill(b *testing.B) {
+	fz, err := NewFinder(DefaultOptions())
+	if err != nil {
+		b.Fatal(err)
+	}
+	var f Func = benchHill
+	var res *Result
+	b.ReportAllocs()
+	for b.Loop() {
+		res, err = fz.Find(f, 0.05, 3)
+		if err != nil {
+			b.Fatal(err)
+		}
+	}
+	if len(res.Equilibria) != 3 {
+		b.Fatalf("Find found %d equilibria, want 3", len(res.Equilibria))
+	}
+	b.ReportMetric(float64(res.Evals), "evals/op")
+	b.ReportMetric(float64(res.TaylorCalls), "taylor/op")
+}
+
+func BenchmarkHillEval(b *testing.B) {
+	x, s := 0.7, 0.0
+	for b.Loop() {
+		s += benchHill.Eval(x)
+	}
+	_ = s
+}
+
+func BenchmarkHillTaylor3(b *testing.B) {
+	var c, e [3]float64
+	for b.Loop() {
+		benchHill.Taylor(0.7, c[:], e[:])
+	}
+}
+
+// TestBenchLawsAgree: Find and the plain scan + Brent reference agree on
+// both benchmark laws (same roots to 1e-10).
+func TestBenchLawsAgree(t *testing.T) {
+	for _, tc := range []struct {
+		f      Func
+		native func(float64) float64
+		lo, hi float64
+	}{
+		{lakeFunc{benchA, benchB}, nativeLake, 0, 3},
+		{benchHill, benchHill.Eval, 0.05, 3},
+	} {
+		ref, _ := nativeScanBrent(tc.native, tc.lo, tc.hi, nil)
+		res := mustFind(t, tc.f, tc.lo, tc.hi)
+		got := xs(res)
+		if len(got) != len(ref) {
+			t.Fatalf("Find %v, scan + Brent %v", got, ref)
+		}
+		for i := range ref {
+			if !near(got[i], ref[i], 1e-10) {
+				t.Errorf("root %d: Find %.15g, scan + Brent %.15g", i, got[i], ref[i])
+			}
+		}
+	}
+}

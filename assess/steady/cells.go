@@ -146,7 +146,7 @@ func quadMin(c0, c1, c2, t0, t1 float64) (int, float64) {
 	if s == 0 || sgn(v1, 0) != s {
 		return 0, 0
 	}
-	m := math.Min(math.Abs(v0), math.Abs(v1))
+	m := fmin(math.Abs(v0), math.Abs(v1))
 	if c2 != 0 {
 		tv := -c1 / (2 * c2)
 		if tv > t0 && tv < t1 {
@@ -154,7 +154,7 @@ func quadMin(c0, c1, c2, t0, t1 float64) (int, float64) {
 			if sgn(vv, 0) != s {
 				return 0, 0
 			}
-			m = math.Min(m, math.Abs(vv))
+			m = fmin(m, math.Abs(vv))
 		}
 	}
 	return s, m
@@ -213,7 +213,7 @@ func (fz *Finder) convexCell(A, B node, depth int) {
 			return
 		}
 		M := fz.sol.node()
-		big := math.Max(math.Abs(A.c[0]), math.Abs(B.c[0]))
+		big := fmax(math.Abs(A.c[0]), math.Abs(B.c[0]))
 		if math.Abs(M.c[0]) > 1e6*big+M.e[0] && sA != 0 && sA == sB && sgn(M.c[0], 0) == sA {
 			// |f| peaks far above both ends: an even pole inside the cell.
 			fz.addPole(M.x)
@@ -250,6 +250,11 @@ func (fz *Finder) rootIn(A, B node, depth int) {
 	} else if finite(A.c[0]) && finite(B.c[0]) && A.c[0] != B.c[0] {
 		x0 = A.x + A.c[0]/(A.c[0]-B.c[0])*(B.x-A.x)
 	}
+	// A bound on |f‴/6| for Halley's error estimate (none without data).
+	fz.rho = math.Inf(1)
+	if A.kind == kSmooth && B.kind == kSmooth {
+		fz.rho, _ = rho3(&A, &B, B.x-A.x)
+	}
 	switch fz.solve(0, A.x, B.x, sa, x0) {
 	case solveBad:
 		fz.splitAtBad(A, B, depth)
@@ -260,8 +265,8 @@ func (fz *Finder) rootIn(A, B node, depth int) {
 	s := &fz.sol
 	c, e := s.shifted()
 	v := math.Abs(c[0])
-	lo := math.Min(math.Abs(A.c[0]), math.Abs(B.c[0]))
-	hi := math.Max(math.Abs(A.c[0]), math.Abs(B.c[0]))
+	lo := fmin(math.Abs(A.c[0]), math.Abs(B.c[0]))
+	hi := fmax(math.Abs(A.c[0]), math.Abs(B.c[0]))
 	// Schröder's ratio q = f f″/f'² tells a zero from a pole in the local
 	// power-law model: (m−1)/(2m) < 1/2 at a zero of order m, (m+1)/(2m) > 1/2
 	// at a pole of order m.
@@ -451,7 +456,16 @@ func (fz *Finder) solve(L int, a, b float64, sa int, x0 float64) int {
 		} else {
 			hi = x
 		}
-		dx := -g * g1 / (g1*g1 - g*g2)
+		// Schröder's step; at a zero that is clearly simple
+		// (|g g″| ≤ g'²/10) Halley's, dx = −2 g g'/(2g'² − g g″), whose
+		// error is cubic: (g″²/(4g'²) + |g‴|/(6|g'|)) |dx|³.
+		halley := L == 0 && math.Abs(g*g2) <= 0.1*g1*g1
+		var dx float64
+		if halley {
+			dx = -2 * g * g1 / (2*g1*g1 - g*g2)
+		} else {
+			dx = -g * g1 / (g1*g1 - g*g2)
+		}
 		xn := x + dx
 		tolx := fz.tol(x)
 		if xn > lo && xn < hi && math.Abs(dx) <= 0.5*prev {
@@ -460,9 +474,14 @@ func (fz *Finder) solve(L int, a, b float64, sa int, x0 float64) int {
 				s.root, s.dloc = xn, ad
 				return solveOK
 			}
-			// Predicted error of the next iterate at a simple zero.
-			if g1 != 0 {
-				if pred := math.Abs(g2/g1) * ad * ad; pred <= tolx && ad < 1e-3*(b-a) {
+			// Predicted error of the new iterate at a simple zero.
+			if g1 != 0 && ad < 1e-3*(b-a) {
+				r := math.Abs(g2 / g1)
+				pred := r * ad * ad
+				if halley {
+					pred = (0.25*r*r + fz.rho/math.Abs(g1)) * ad * ad * ad
+				}
+				if pred <= tolx {
 					s.root, s.dloc = xn, pred
 					return solveOK
 				}
@@ -497,7 +516,8 @@ func hermite(A, B *node) [6]float64 {
 }
 
 // unitRoot returns a zero in (0, 1) of the polynomial q (ascending
-// coefficients) when q(0), q(1) differ in sign (Newton with bisection), or
+// coefficients) when q(0), q(1) differ in sign (Newton with bisection from
+// the zero of its quadratic part at the nearer end, or of the secant), or
 // 0.5 otherwise.
 func unitRoot(q []float64) float64 {
 	q0 := q[0]
@@ -510,6 +530,9 @@ func unitRoot(q []float64) float64 {
 	}
 	lo, hi := 0.0, 1.0
 	s := q0 / (q0 - q1)
+	if t := quadRoot(q[0], q[1], q[2]); t > 0 && t < 1 {
+		s = t
+	}
 	for it := 0; it < 40; it++ {
 		v, d := 0.0, 0.0
 		for k := len(q) - 1; k >= 0; k-- {
@@ -534,4 +557,38 @@ func unitRoot(q []float64) float64 {
 		s = sn
 	}
 	return s
+}
+
+// quadRoot returns the smallest positive zero of c0 + c1 t + c2 t², or −1.
+func quadRoot(c0, c1, c2 float64) float64 {
+	if c2 == 0 {
+		if c1 == 0 {
+			return -1
+		}
+		return -c0 / c1
+	}
+	d := c1*c1 - 4*c0*c2
+	if d < 0 {
+		return -1
+	}
+	// Stable form: q = −(c1 + sign(c1)√d)/2, roots q/c2 and c0/q.
+	sq := math.Sqrt(d)
+	if c1 < 0 {
+		sq = -sq
+	}
+	qq := -0.5 * (c1 + sq)
+	r1, r2 := -1.0, -1.0
+	if c2 != 0 {
+		r1 = qq / c2
+	}
+	if qq != 0 {
+		r2 = c0 / qq
+	}
+	switch {
+	case r1 > 0 && (r2 <= 0 || r1 < r2):
+		return r1
+	case r2 > 0:
+		return r2
+	}
+	return -1
 }

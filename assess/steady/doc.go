@@ -35,8 +35,12 @@
 // dx = −f f'/(f'² − f f″), which converges quadratically at simple and
 // multiple roots alike (Schröder 1870; see Householder, The Numerical
 // Treatment of a Single Nonlinear Equation, 1970), with a bisection step
-// whenever it leaves the bracket or stalls. The first iterate is the root of
-// the quintic Hermite interpolant of the cell data. An extremum of f (a root
+// whenever it leaves the bracket or stalls. Where the root is clearly simple
+// (|f f″| ≤ f'²/10) Halley's step dx = −2f f'/(2f'² − f f″) is taken
+// instead, whose cubic error, estimated with the cell's bound on |f‴|, lets
+// the iteration stop after one Taylor evaluation in the common case. The
+// first iterate is the root of the quintic Hermite interpolant of the cell
+// data. An extremum of f (a root
 // of f') is refined the same way one derivative higher. At an extremum x_m
 // the verdict is: a touching root when |f(x_m)| is within its rounding-error
 // bound plus the effect of the location uncertainty of x_m; a close pair,
@@ -53,7 +57,10 @@
 //
 // where e_k is the rounding-error bound carried by the Taylor arithmetic and
 // δ the location uncertainty of the root (the larger of the refinement's
-// last correction and min_k ((|c_0|+e_0)/|c_k|)^{1/k}). Each verdict is
+// last correction and min_k ((|c_0|+e_0)/|c_k|)^{1/k}). For a verdict of
+// order above 1 the effect of the unknown coefficients beyond c_7 is added,
+// bounded from Taylor data at x* ± η by what c_0..c_7 do not explain (so
+// x' = −x⁹ is Degenerate, not "order 7"). Each verdict is
 // cross-checked against the sign of f between neighbouring equilibria (the
 // phase line); a disagreement becomes a warning.
 //

@@ -559,6 +559,33 @@ func TestBasinsAndBarriers(t *testing.T) {
 	if q.Basin != [2]float64{-1, 0} || !near(q.Barrier[0], 1.0/3, 1e-12) || q.Barrier[1] != 0 {
 		t.Errorf("x²: basin %v barrier %v, want [−1 0] and [1/3 0]", q.Basin, q.Barrier)
 	}
+	// Shallow lake (illustrative a = 0.06, b = 0.52): ∫ f dP = aP − bP²/2 +
+	// P − arctan P (analytic), so V(edge) − V(x*) = F(x*) − F(edge).
+	la, lb := 0.06, 0.52
+	F := func(p float64) float64 { return la*p - lb*p*p/2 + p - math.Atan(p) }
+	res = mustFind(t, lake(la, lb), 0, 3)
+	if len(res.Equilibria) != 3 {
+		t.Fatalf("lake: %v", xs(res))
+	}
+	for _, q := range res.Equilibria {
+		for s := 0; s < 2; s++ {
+			want := F(q.X) - F(q.Basin[s])
+			if !near(q.Barrier[s], want, 1e-9*math.Abs(want)+1e-13) {
+				t.Errorf("lake x*=%.6g: barrier[%d] %.15g, analytic %.15g", q.X, s, q.Barrier[s], want)
+			}
+		}
+	}
+	// Semenov δ = 0.2: ∫ f dθ = δe^θ − θ²/2 (analytic); the lower, stable
+	// equilibrium's basin is [0, θ_upper].
+	G := func(th float64) float64 { return 0.2*math.Exp(th) - th*th/2 }
+	res = mustFind(t, semenov(0.2), 0, 5)
+	q = res.Equilibria[0]
+	for s := 0; s < 2; s++ {
+		want := G(q.X) - G(q.Basin[s])
+		if !near(q.Barrier[s], want, 1e-9*math.Abs(want)) {
+			t.Errorf("semenov: barrier[%d] %.15g, analytic %.15g", s, q.Barrier[s], want)
+		}
+	}
 	// Barriers switched off.
 	opt := DefaultOptions()
 	opt.NoBarriers = true
@@ -668,7 +695,7 @@ func (panicky) Eval(float64) float64                 { panic("boom") }
 func (panicky) Taylor(float64, []float64, []float64) { panic("boom") }
 
 func TestErrors(t *testing.T) {
-	for _, d := range [][2]float64{{1, 1}, {2, 1}, {math.NaN(), 1}, {0, math.Inf(1)}} {
+	for _, d := range [][2]float64{{1, 1}, {2, 1}, {math.NaN(), 1}, {0, math.Inf(1)}, {-1e308, 1e308}} {
 		if _, err := Find(poly{1}, d[0], d[1], DefaultOptions()); !errors.Is(err, ErrDomain) {
 			t.Errorf("domain %v: err %v, want ErrDomain", d, err)
 		}

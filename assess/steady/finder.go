@@ -35,8 +35,9 @@ type Finder struct {
 	stopped              bool
 	res                  Result
 
-	// last iterate of solve
+	// last iterate of solve, and the bound on |f‴/6| for its error estimate
 	sol solution
+	rho float64
 }
 
 // NewFinder validates opt and returns a Finder.
@@ -70,7 +71,7 @@ func (fz *Finder) Find(f Func, lo, hi float64) (res *Result, err error) {
 	if f == nil {
 		return nil, errors.New("steady: nil rate law")
 	}
-	if math.IsNaN(lo) || math.IsNaN(hi) || math.IsInf(lo, 0) || math.IsInf(hi, 0) || !(lo < hi) {
+	if !(lo < hi) || math.IsInf(hi-lo, 0) {
 		return nil, fmt.Errorf("%w: [%g, %g] (need finite lo < hi)", ErrDomain, lo, hi)
 	}
 	defer func() {
@@ -209,13 +210,14 @@ func (n *node) flat() bool {
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
-// nodeFrom builds a node at x from fz.c, fz.e (at least 3 terms filled).
-func (fz *Finder) nodeFrom(x float64) node {
-	nd := node{x: x}
+// setNode fills nd at x from fz.c, fz.e (at least 3 terms filled).
+func (fz *Finder) setNode(nd *node, x float64) {
+	nd.x = x
 	nd.c = [3]float64{fz.c[0], fz.c[1], fz.c[2]}
 	nd.e = [3]float64{fz.e[0], fz.e[1], fz.e[2]}
+	nd.kind = kSmooth
 	if s := nd.c[0] + nd.c[1] + nd.c[2] + nd.e[0] + nd.e[1] + nd.e[2]; s-s == 0 {
-		return nd // all finite: kSmooth
+		return // all finite
 	}
 	if !finite(nd.e[0]) && finite(nd.c[0]) {
 		nd.e[0] = 0 // an unusable bound: judge the sign of f by its value
@@ -227,15 +229,14 @@ func (fz *Finder) nodeFrom(x float64) node {
 		nd.kind = kPole
 	case !finite(nd.c[1]) || !finite(nd.c[2]) || !finite(nd.e[0]) || !finite(nd.e[1]) || !finite(nd.e[2]):
 		nd.kind = kRough
-	default:
-		nd.kind = kSmooth
 	}
-	return nd
 }
 
 func (fz *Finder) evalNode(x float64) node {
+	var nd node
 	fz.taylor(x, 3)
-	return fz.nodeFrom(x)
+	fz.setNode(&nd, x)
+	return nd
 }
 
 // scan evaluates the uniform grid.
@@ -246,9 +247,10 @@ func (fz *Finder) scan() {
 		if i == n {
 			x = fz.hi
 		}
-		fz.nodes[i] = fz.evalNode(x)
+		fz.taylor(x, 3)
+		fz.setNode(&fz.nodes[i], x)
 		if fz.nodes[i].kind <= kRough {
-			fz.fscale = math.Max(fz.fscale, math.Abs(fz.nodes[i].c[0]))
+			fz.fscale = fmax(fz.fscale, math.Abs(fz.nodes[i].c[0]))
 		}
 	}
 }
@@ -293,7 +295,7 @@ func (fz *Finder) inContinuum(x float64) bool {
 // within its error bound".
 func (fz *Finder) zeroEdge(x float64, dir int) float64 {
 	out := x + float64(dir)*fz.h0
-	out = math.Max(fz.lo, math.Min(fz.hi, out))
+	out = fmax(fz.lo, fmin(fz.hi, out))
 	if out == x {
 		return x
 	}
@@ -324,6 +326,7 @@ type cand struct {
 	span  [2]float64
 	cont  bool // continuum from the scan
 	touch bool // touching root found at an extremum
+	rough bool // a Taylor coefficient is NaN at the root
 
 	// classification
 	cls   Class

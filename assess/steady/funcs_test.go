@@ -401,3 +401,61 @@ func (a jet) sincos() (jet, jet) {
 	}
 	return s, c
 }
+
+// hillLake is the shallow-lake law with a Hill recycling term,
+// L − s P + r P^q/(m^q + P^q) (illustrative parameters in the benchmarks),
+// whose Eval costs a math.Pow: a costlier law, like a compiled one. Taylor
+// computes P^q = exp(q log P) by the series recurrences on fixed arrays.
+type hillLake struct{ L, s, r, mq, q float64 }
+
+func (h hillLake) Eval(p float64) float64 {
+	pq := math.Pow(p, h.q)
+	return h.L - h.s*p + h.r*pq/(h.mq+pq)
+}
+
+func (h hillLake) Taylor(x float64, c, e []float64) {
+	n := len(c)
+	var lg, pw, d, q [MaxTaylor]float64
+	// log P with P = x + t: log x, then c_k = (−1)^(k+1)/(k x^k).
+	lg[0] = math.Log(x)
+	ix := 1 / x
+	t := ix
+	for k := 1; k < n; k++ {
+		lg[k] = t / float64(k)
+		if k%2 == 0 {
+			lg[k] = -lg[k]
+		}
+		t *= ix
+	}
+	// P^q = exp(q log P).
+	pw[0] = math.Exp(h.q * lg[0])
+	for k := 1; k < n; k++ {
+		s := 0.0
+		for j := 1; j <= k; j++ {
+			s += float64(j) * h.q * lg[j] * pw[k-j]
+		}
+		pw[k] = s / float64(k)
+	}
+	// D = m^q + P^q; Q = P^q / D.
+	d = pw
+	d[0] += h.mq
+	eabs := 0.0
+	for k := 0; k < n; k++ {
+		s := pw[k]
+		for i := 1; i <= k; i++ {
+			s -= d[i] * q[k-i]
+		}
+		q[k] = s / d[0]
+	}
+	for k := 0; k < n; k++ {
+		c[k] = h.r * q[k]
+		eabs = float64(4*k+8) * unit * (math.Abs(c[k]) + math.Abs(h.r*pw[k]/d[0]))
+		e[k] = eabs
+	}
+	c[0] += h.L - h.s*x
+	e[0] += 4 * unit * (math.Abs(h.L) + math.Abs(h.s*x) + math.Abs(c[0]))
+	if n > 1 {
+		c[1] -= h.s
+		e[1] += 2 * unit * math.Abs(c[1])
+	}
+}
