@@ -403,18 +403,19 @@ func (w *worker) track(res *steady.Result) {
 			if !w.candidate(eqs, e.Slope) {
 				continue // no unclaimed root with this slope sign: lost
 			}
-			x, ok := w.tr.follow(e.X, w.scale[k])
+			w.tr.roots = eqs
+			x, j, ok := w.tr.follow(e.X, e.Slope, w.scale[k])
 			if !ok {
 				continue
 			}
 			s.exists, s.x = true, x
-			j := nearest(eqs, x, w.m.Domain)
 			if j >= 0 && w.claimed[j] < 0 {
 				w.claimed[j] = k
 				s.idx, s.x, s.slope = j, eqs[j].X, eqs[j].Slope
 			} else {
-				// Continuation found a root the scan did not report:
-				// keep it, classify by its slope, and count the miss.
+				// Continuation found a root the scan did not report (or
+				// one already claimed): keep it, classify by its slope,
+				// and count the miss.
 				_, s.slope = w.tr.slope(x)
 				w.agg.scanMissed++
 			}

@@ -2,6 +2,8 @@ package assess
 
 import (
 	"math"
+
+	"holdfast/assess/steady"
 )
 
 // tracker follows an equilibrium x*(θ) of f(x; θ) = 0 along the straight
@@ -22,6 +24,7 @@ import (
 // because the residual g is exact.
 type tracker struct {
 	f        *Func
+	roots    []steady.Equilibrium // the draw's equilibria (t = 1), from the scan
 	th0, th1 []float64 // endpoints of the path; f.Theta is the moving point
 	lo, hi   float64   // domain
 	c, e     [2]float64
@@ -59,41 +62,59 @@ func (tr *tracker) jet(x, t float64) (g, gx, gt float64) {
 	return g, gx, (g1 - g) / dtDiff
 }
 
-// follow continues the equilibrium x0 of g(·, 0) to t = 1. It returns the
-// equilibrium of g(·, 1) and true, or false when the branch meets a fold
-// or leaves the domain. scale is the length in x over which the branch
-// may be assumed isolated (half the gap to the neighbouring equilibria at
-// t = 0): it sets the metric of the arclength, so that no accepted step
-// moves x by more than a fraction of it beyond the prediction. f.Theta is
-// left at θ₁.
-func (tr *tracker) follow(x0, scale float64) (float64, bool) {
+// follow continues the equilibrium x0 of g(·, 0), whose slope there is
+// slope0, to t = 1. It returns the equilibrium of g(·, 1), the index of
+// that equilibrium among tr.roots (−1 when Newton's method found a root the
+// scan did not report), and true; or false when the branch meets a fold or
+// leaves the domain. scale is the length in x over which the branch may be
+// assumed isolated (half the gap to the neighbouring equilibria at t = 0):
+// it sets the metric of the arclength, so that no accepted step moves x by
+// more than a fraction of it beyond the prediction. f.Theta is left at θ₁.
+//
+// The last stretch to t = 1 lands on the draw's own roots: when exactly
+// one root lies within the acceptance radius of the prediction and has the
+// branch's slope sign, it is the branch's end (the branch keeps its slope
+// sign up to a fold, and the radius is the one the distance test of every
+// arclength step uses). Only when none is there does Newton's method look
+// for a root the scan may have missed.
+func (tr *tracker) follow(x0, slope0, scale float64) (x float64, idx int, ok bool) {
 	defer tr.at(1)
 	W := scale
-	if !(W > 0) || !(tr.hi > tr.lo) {
-		return math.NaN(), false
+	if !(W > 0) || !(tr.hi > tr.lo) || slope0 == 0 || math.IsNaN(slope0) {
+		return math.NaN(), -1, false
 	}
+	// At t = 0 the point is the nominal equilibrium: g = 0 and ∂g/∂x is
+	// its slope; ∂g/∂t needs one evaluation.
+	tr.at(dtDiff)
+	tr.calls++
+	gt := tr.f.Eval(x0) / dtDiff
+	if math.IsNaN(gt) || math.IsInf(gt, 0) {
+		return math.NaN(), -1, false
+	}
+	gx := slope0
 	// Work in u = x/W so that both coordinates are of order one.
 	u, t := x0/W, 0.0
-	g, gx, gt := tr.jet(x0, 0)
-	if math.IsNaN(g) || gx == 0 || math.IsNaN(gx) || math.IsNaN(gt) {
-		return math.NaN(), false
-	}
 	tu, tt := tangent(gx*W, gt, 1)
 	s := 1.0
 	for step := 0; step < maxArcSteps; step++ {
-		// Last stretch: land exactly on t = 1 by Newton in x alone.
 		if t+s*tt >= 1 {
 			up := u + (1-t)*tu/tt
-			x, ok := tr.newtonAt1(up*W, math.Copysign(1, gx))
-			// The same distance test as for arclength steps: without it
-			// Newton could slide to another root of the same slope sign
-			// when the branch has folded away before t = 1.
-			if ok && math.Abs(x/W-up) <= 0.5*s {
-				return tr.inside(x)
+			j, near := tr.rootNear(up*W, 0.5*s*W, gx)
+			switch {
+			case near == 1 && j >= 0:
+				return tr.roots[j].X, j, true
+			case near == 0 && s <= 1.0/16:
+				// Nothing the scan found is there: look for a root it
+				// may have missed, with the same distance test.
+				x, ok := tr.newtonAt1(up*W, math.Copysign(1, gx))
+				if ok && math.Abs(x/W-up) <= 0.5*s {
+					x, ok = tr.inside(x)
+					return x, -1, ok
+				}
 			}
 			s /= 2
 			if s < minArcStep {
-				return math.NaN(), false
+				return math.NaN(), -1, false
 			}
 			continue
 		}
@@ -107,12 +128,12 @@ func (tr *tracker) follow(x0, scale float64) (float64, bool) {
 		if !ok {
 			s /= 2
 			if s < minArcStep {
-				return math.NaN(), false
+				return math.NaN(), -1, false
 			}
 			continue
 		}
 		if nu*W < tr.lo-(tr.hi-tr.lo) || nu*W > tr.hi+(tr.hi-tr.lo) {
-			return math.NaN(), false // far outside: the branch left the domain
+			return math.NaN(), -1, false // far outside: the branch left the domain
 		}
 		// The tangent from the last corrector iterate's derivatives: it
 		// is within the convergence tolerance of the new point.
@@ -121,12 +142,35 @@ func (tr *tracker) follow(x0, scale float64) (float64, bool) {
 			ntu, ntt = -ntu, -ntt
 		}
 		if ntt <= 0 || ngx*gx <= 0 {
-			return math.NaN(), false // turned back at a fold
+			return math.NaN(), -1, false // turned back at a fold
 		}
 		u, t, tu, tt = nu, nt, ntu, ntt
 		s = math.Min(2*s, 1)
 	}
-	return math.NaN(), false
+	return math.NaN(), -1, false
+}
+
+// rootNear counts the draw's roots within r of x and returns the index of
+// the nearest one whose slope has the sign of slope (−1 if that one has
+// another sign or is not hyperbolic).
+func (tr *tracker) rootNear(x, r, slope float64) (j, n int) {
+	j = -1
+	best := math.Inf(1)
+	for k := range tr.roots {
+		d := math.Abs(tr.roots[k].X - x)
+		if d > r {
+			continue
+		}
+		n++
+		if d < best {
+			best = d
+			j = k
+		}
+	}
+	if j >= 0 && (tr.roots[j].Order != 1 || tr.roots[j].Slope*slope <= 0) {
+		j = -1
+	}
+	return j, n
 }
 
 // tangent returns the unit vector (−gt, gu), the direction in which g

@@ -2,6 +2,7 @@ package assess
 
 import (
 	"math"
+	"slices"
 	"testing"
 
 	"holdfast/assess/steady"
@@ -64,11 +65,16 @@ func TestTrackerAgreesWithDenseContinuation(t *testing.T) {
 		disagree := 0
 		for i := 0; i < 300; i++ {
 			d.Draw(i, theta)
+			res, err := steady.Find(m.Func(slices.Clone(theta)), m.Domain[0], m.Domain[1], steady.DefaultOptions())
+			if err != nil {
+				t.Fatal(err)
+			}
+			tr.roots = res.Equilibria
 			for k, e := range nom.Equilibria {
 				if e.Order != 1 || e.Class == steady.Degenerate {
 					continue
 				}
-				x1, ok1 := tr.follow(e.X, scale[k])
+				x1, _, ok1 := tr.follow(e.X, e.Slope, scale[k])
 				x2, ok2 := denseFollow(&tr, e.X, math.Copysign(1, e.Slope), 3000)
 				if ok1 != ok2 || (ok1 && math.Abs(x1-x2) > 1e-8*(1+math.Abs(x2))) {
 					disagree++

@@ -178,14 +178,16 @@ func (st *store) growUp(i int) {
 
 func (st *store) growDown(i int) {
 	hi := st.offset + len(st.counts) - 1
-	lo := i
+	// Leave headroom below, as much again as the span, so that a slowly
+	// falling minimum does not reallocate on every new bucket.
+	lo := i - len(st.counts)
 	if hi-lo+1 > MaxBuckets {
 		lo = hi - MaxBuckets + 1
 	}
 	if lo >= st.offset {
 		return // i is below the kept range; add folds it into the lowest bucket
 	}
-	c := make([]int64, hi-lo+1, max(hi-lo+1, 2*cap(st.counts)))
+	c := make([]int64, hi-lo+1)
 	copy(c[st.offset-lo:], st.counts)
 	st.counts = c
 	st.offset = lo

@@ -17,8 +17,8 @@ import (
 
 const refPrec = 400
 
-func bf(x float64) *big.Float { return new(big.Float).SetPrec(refPrec).SetFloat64(x) }
-func bnew() *big.Float        { return new(big.Float).SetPrec(refPrec) }
+func bf(x float64) *big.Float         { return new(big.Float).SetPrec(refPrec).SetFloat64(x) }
+func bnew() *big.Float                { return new(big.Float).SetPrec(refPrec) }
 func badd(a, b *big.Float) *big.Float { return bnew().Add(a, b) }
 func bsub(a, b *big.Float) *big.Float { return bnew().Sub(a, b) }
 func bmul(a, b *big.Float) *big.Float { return bnew().Mul(a, b) }

@@ -183,3 +183,88 @@ func refTol(ref *big.Float) float64 {
 	r, _ := ref.Float64()
 	return 0x1p-300 * math.Max(1, math.Abs(r))
 }
+
+// TestLibraryAccuracy checks the accuracy model of Go's math functions that
+// the error bounds rely on (rounding.go: lib, trigReduce, powLib) against
+// the math/big reference, on this platform (on amd64 Exp and Log are
+// assembly versions whose sources state no accuracy).
+func TestLibraryAccuracy(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 22))
+	n := 100000
+	if testing.Short() {
+		n = 300
+	}
+	type fn struct {
+		name  string
+		f     func(float64) float64
+		ref   func(*big.Float) *big.Float
+		bound func(x, v float64) float64
+		lo    float64
+		hi    float64
+	}
+	sin := func(x *big.Float) *big.Float { s, _ := bsincos(x); return s }
+	cos := func(x *big.Float) *big.Float { _, c := bsincos(x); return c }
+	fns := []fn{
+		{"exp", math.Exp, bexp, func(x, v float64) float64 { return lib(v, 4) }, -700, 700},
+		{"log", math.Log, blog, func(x, v float64) float64 { return lib(v, 3) }, 1e-300, 1e300},
+		{"log near 1", math.Log, blog, func(x, v float64) float64 { return lib(v, 3) }, 0.5, 2},
+		{"log10", math.Log10, func(x *big.Float) *big.Float { return bquo(blog(x), blog(bint(10))) },
+			func(x, v float64) float64 { return lib(v, 4) }, 1e-300, 1e300},
+		{"sin", math.Sin, sin, func(x, v float64) float64 { return lib(v, 4) + trigReduce(x) }, -100, 100},
+		{"cos", math.Cos, cos, func(x, v float64) float64 { return lib(v, 4) + trigReduce(x) }, -100, 100},
+		{"tan", math.Tan, func(x *big.Float) *big.Float { s, c := bsincos(x); return bquo(s, c) },
+			func(x, v float64) float64 { return lib(v, 4) + trigReduce(x)*(1+v*v) }, -100, 100},
+		{"atan", math.Atan, batan, func(x, v float64) float64 { return lib(v, 4) }, -50, 50},
+		{"sinh", math.Sinh, func(x *big.Float) *big.Float {
+			return bquo(bsub(bexp(x), bexp(bnew().Neg(x))), bint(2))
+		}, func(x, v float64) float64 { return lib(v, 6) }, -700, 700},
+		{"cosh", math.Cosh, func(x *big.Float) *big.Float {
+			return bquo(badd(bexp(x), bexp(bnew().Neg(x))), bint(2))
+		}, func(x, v float64) float64 { return lib(v, 6) }, -700, 700},
+		{"tanh", math.Tanh, func(x *big.Float) *big.Float {
+			e2 := bexp(bmul(bint(2), x))
+			return bquo(bsub(e2, bint(1)), badd(e2, bint(1)))
+		}, func(x, v float64) float64 { return lib(v, 4) }, -20, 20},
+	}
+	for _, f := range fns {
+		worst := 0.0
+		for i := 0; i < n; i++ {
+			var x float64
+			if f.lo > 0 { // log-uniform
+				x = math.Exp(math.Log(f.lo) + (math.Log(f.hi)-math.Log(f.lo))*rng.Float64())
+			} else {
+				x = f.lo + (f.hi-f.lo)*rng.Float64()
+				if i%3 == 0 {
+					x *= 1e-3 // small arguments too
+				}
+			}
+			v := f.f(x)
+			d := new(big.Float).SetPrec(refPrec).Sub(bf(v), f.ref(bf(x)))
+			df, _ := d.Abs(d).Float64()
+			b := f.bound(x, v)
+			if df > b {
+				t.Errorf("%s(%v) = %v: error %.3g > model %.3g", f.name, x, v, df, b)
+			}
+			worst = math.Max(worst, df/b)
+		}
+		t.Logf("%-10s largest error/model %.3f", f.name, worst)
+	}
+	// Pow: powLib against exp(b log a).
+	worst := 0.0
+	for i := 0; i < n; i++ {
+		a := math.Exp(-5 + 10*rng.Float64())
+		b := -30 + 60*rng.Float64()
+		if i%2 == 0 {
+			b = math.Round(b) // the repeated-squaring path alone
+		}
+		v := math.Pow(a, b)
+		d := new(big.Float).SetPrec(refPrec).Sub(bf(v), bpow0(bf(a), bf(b)))
+		df, _ := d.Abs(d).Float64()
+		if bd := powLib(a, b, v); df > bd {
+			t.Errorf("pow(%v, %v) = %v: error %.3g > model %.3g", a, b, v, df, bd)
+		} else {
+			worst = math.Max(worst, df/bd)
+		}
+	}
+	t.Logf("%-10s largest error/model %.3f", "pow", worst)
+}

@@ -9,16 +9,16 @@ import (
 type FaultKind uint8
 
 const (
-	FaultNone        FaultKind = iota
-	FaultLogDomain             // log or log10 of a non-positive number
-	FaultSqrtDomain            // sqrt of a negative number
-	FaultDivZero               // division by zero, or 0 to a negative power
-	FaultPowDomain             // negative base to a non-integer power
-	FaultOverflow              // a finite computation exceeded the float64 range
-	FaultNaNOperand            // the state or a parameter is NaN
-	FaultInfOperand            // the state or a parameter is ±Inf
-	FaultUndefined             // a non-finite result with no other explanation (not expected)
-	NumFaultKinds              // number of kinds, for tables indexed by kind
+	FaultNone       FaultKind = iota
+	FaultLogDomain            // log or log10 of a non-positive number
+	FaultSqrtDomain           // sqrt of a negative number
+	FaultDivZero              // division by zero, or 0 to a negative power
+	FaultPowDomain            // negative base to a non-integer power
+	FaultOverflow             // a finite computation exceeded the float64 range
+	FaultNaNOperand           // the state or a parameter is NaN
+	FaultInfOperand           // the state or a parameter is ±Inf
+	FaultUndefined            // a non-finite result with no other explanation (not expected)
+	NumFaultKinds             // number of kinds, for tables indexed by kind
 )
 
 func (k FaultKind) String() string {

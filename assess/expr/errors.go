@@ -138,8 +138,8 @@ func suggest(name string, cands []string) string {
 
 // editDistance is the optimal-string-alignment distance between a and b:
 // the number of single-character insertions, deletions, substitutions and
-// transpositions of adjacent characters that turn a into b (Damerau 1964;
-// the restricted form, as in Boytsov 2011, ACM JEA 16).
+// transpositions of adjacent characters that turn a into b (Damerau 1964,
+// in its restricted form: no substring is edited twice).
 func editDistance(a, b string) int {
 	ra, rb := []rune(a), []rune(b)
 	// Three rolling rows: d[i-2], d[i-1], d[i].

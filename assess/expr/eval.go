@@ -15,9 +15,9 @@ type Machine struct {
 
 	ts taylorRegs // Taylor series registers
 
-	gv, gd   []float64 // ParamGrad: values and their x-derivatives
-	gb, gbd  []float64 // ParamGrad: adjoints and their x-derivatives
-	dg       diagState // Diagnose memo for defines
+	gv, gd  []float64 // ParamGrad: values and their x-derivatives
+	gb, gbd []float64 // ParamGrad: adjoints and their x-derivatives
+	dg      diagState // Diagnose memo for defines
 }
 
 // NewMachine returns scratch space for evaluating p.

@@ -219,7 +219,7 @@ func pickA(a, b, ad, bd float64, isMax bool) bool {
 	return true
 }
 
-// unary returns φ(a), φ'(a) and φ''(a) for a univariate instruction; ad
+// unary returns φ(a), φ′(a) and φ″(a) for a univariate instruction; ad
 // (the x-tangent of a) picks the branch of abs at 0.
 func unary(op opcode, a, ad float64) (w, d1, d2 float64) {
 	switch op {

@@ -16,8 +16,8 @@ const (
 )
 
 // unitRoundoff is u = 2⁻⁵³, the unit roundoff of float64 round-to-nearest:
-// fl(a∘b) = (a∘b)/(1+δ) with |δ| ≤ u (Higham, Accuracy and Stability of
-// Numerical Algorithms, 2nd ed., 2002, eq. 2.5).
+// a correctly rounded v is within u|v| of the exact value (Higham, Accuracy
+// and Stability of Numerical Algorithms, 2nd ed., 2002, §2.2).
 const unitRoundoff = 0x1p-53
 
 // scope resolves names while one expression is parsed.

@@ -22,9 +22,8 @@ type taylorRegs struct {
 }
 
 // Taylor fills c[k] = f⁽ᵏ⁾(x)/k! for k = 0..len(c)−1 (len(c) ≤ MaxOrder+1)
-// in one pass of truncated Taylor arithmetic (Griewank & Walther, Evaluating
-// Derivatives, 2nd ed., SIAM 2008, ch. 13, Table 13.1–13.2 recurrences; Moore,
-// Interval Analysis, 1966, for the univariate coefficient propagation), and
+// in one pass of truncated Taylor arithmetic (the coefficient recurrences of
+// Griewank & Walther, Evaluating Derivatives, 2nd ed., SIAM 2008, ch. 13), and
 // e[k] ≥ a bound on the floating-point error |c[k] − exact| carried by
 // running error analysis through every operation (see rounding.go). e may be
 // nil. c[0] equals Eval(x, theta) bit for bit (or both are NaN).
@@ -105,11 +104,11 @@ func (t *taylorRegs) exec(in *instr, d int) {
 		t.pow(w, a, b, d, in.bxdep)
 	case opExp:
 		w.v[0] = math.Exp(a.v[0])
-		w.e[0] = lib(w.v[0], 2) + pm(math.Abs(w.v[0])*(1+4*u), math.Expm1(a.e[0]))
+		w.e[0] = lib(w.v[0], 4) + pm(math.Abs(w.v[0])*(1+4*u), math.Expm1(a.e[0]))
 		expRec(w, a, d)
 	case opLog:
 		w.v[0] = math.Log(a.v[0])
-		w.e[0] = lib(w.v[0], 2) + logProp(a.v[0], a.e[0])
+		w.e[0] = lib(w.v[0], 3) + logProp(a.v[0], a.e[0])
 		logRec(w, a, d)
 	case opLog10:
 		w.v[0] = math.Log10(a.v[0])
@@ -117,7 +116,7 @@ func (t *taylorRegs) exec(in *instr, d int) {
 		if d > 0 {
 			l := &t.aux[0]
 			l.v[0] = math.Log(a.v[0])
-			l.e[0] = lib(l.v[0], 2) + logProp(a.v[0], a.e[0])
+			l.e[0] = lib(l.v[0], 3) + logProp(a.v[0], a.e[0])
 			logRec(l, a, d)
 			const inv = 1 / math.Ln10
 			for k := 1; k <= d; k++ {
@@ -156,7 +155,7 @@ func seriesMul(w, a, b *series, d int) {
 }
 
 // seriesDiv: w = a/b, w_k = (a_k − Σ_{j<k} w_j b_{k−j}) / b_0
-// (Griewank & Walther Table 13.1).
+// (Griewank & Walther ch. 13).
 func seriesDiv(w, a, b *series, d int) {
 	w.v[0], w.e[0] = divE(a.v[0], a.e[0], b.v[0], b.e[0])
 	for k := 1; k <= d; k++ {
@@ -170,7 +169,7 @@ func seriesDiv(w, a, b *series, d int) {
 }
 
 // expRec fills w_1..w_d of w = exp(a) given w_0, from w' = a'w:
-// w_k = (1/k) Σ_{j=1}^{k} j a_j w_{k−j} (Griewank & Walther Table 13.2).
+// w_k = (1/k) Σ_{j=1}^{k} j a_j w_{k−j} (Griewank & Walther ch. 13).
 func expRec(w, a *series, d int) {
 	for k := 1; k <= d; k++ {
 		var s, es float64
@@ -240,8 +239,8 @@ func sinCos(s, c, a *series, d int, hyp bool) {
 		c.e[0] = lc + pm(ea, (math.Abs(s.v[0])+ls)*math.Cosh(ea)+(c.v[0]+lc)*math.Sinh(ea))
 	} else {
 		s.v[0], c.v[0] = math.Sin(a0), math.Cos(a0)
-		ls := lib(s.v[0], 2) + trigReduce(a0)
-		lc := lib(c.v[0], 2) + trigReduce(a0)
+		ls := lib(s.v[0], 4) + trigReduce(a0)
+		lc := lib(c.v[0], 4) + trigReduce(a0)
 		// Mean value theorem: |sin a* − sin a| ≤ ea·max|cos ξ| ≤ ea·min(1, |cos a| + ea).
 		s.e[0] = ls + pm(ea, math.Min(1, math.Abs(c.v[0])+lc+ea))
 		c.e[0] = lc + pm(ea, math.Min(1, math.Abs(s.v[0])+ls+ea))
@@ -421,8 +420,8 @@ func seriesMinMax(w, a, b *series, d int, isMax bool) {
 // pow: w = a^b. The value is math.Pow(a_0, b_0), as in Eval.
 //
 // Exponent independent of x (a constant or parameter): from a w' = b a' w,
-// k a_0 w_k = Σ_{j=0}^{k−1} (b(k−j) − j) a_{k−j} w_j (Griewank & Walther
-// Table 13.2), valid for a_0 ≠ 0. At a_0 = 0 the series exists only for an
+// k a_0 w_k = Σ_{j=0}^{k−1} (b(k−j) − j) a_{k−j} w_j (from the ODE, as in
+// Griewank & Walther ch. 13), valid for a_0 ≠ 0. At a_0 = 0 the series exists only for an
 // integer exponent n ≥ 0 (then it is the n-th Cauchy power of a, formed by
 // binary powering) or a base constant in x; otherwise the higher
 // coefficients are NaN.
@@ -442,7 +441,7 @@ func (t *taylorRegs) pow(w, a, b *series, d int, bxdep bool) {
 		if a0 > 0 {
 			l, pr := &t.aux[0], &t.aux[1]
 			l.v[0] = math.Log(a0)
-			l.e[0] = lib(l.v[0], 2) + logProp(a0, a.e[0])
+			l.e[0] = lib(l.v[0], 3) + logProp(a0, a.e[0])
 			logRec(l, a, d)
 			seriesMul(pr, b, l, d)
 			expRec(w, pr, d)
