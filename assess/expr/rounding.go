@@ -67,7 +67,11 @@ func prodErr(a, b, v float64) float64 {
 
 func mulE(a, ea, b, eb float64) (float64, float64) {
 	v := a * b
-	return v, pm(math.Abs(a), eb) + pm(ea, math.Abs(b)) + pm(ea, eb) + prodErr(a, b, v)
+	e := math.Abs(a)*eb + ea*(math.Abs(b)+eb) + prodErr(a, b, v)
+	if e != e { // 0·∞ in the propagated terms: an exact zero contributes nothing
+		e = pm(math.Abs(a), eb) + pm(ea, math.Abs(b)) + pm(ea, eb) + prodErr(a, b, v)
+	}
+	return v, e
 }
 
 // quoErr is |a/b − fl(a/b)| = |a − b·v|/|b|.
