@@ -128,6 +128,9 @@ func (f *Func) Eval(x float64) float64 { return f.m.Eval(x, f.Theta) }
 // rounding-error bounds.
 func (f *Func) Taylor(x float64, c, e []float64) { f.m.Taylor(x, f.Theta, c, e) }
 
+// Slope returns f(x; θ) and ∂f/∂x by dual numbers (no error bounds).
+func (f *Func) Slope(x float64) (float64, float64) { return f.m.Slope(x, f.Theta) }
+
 // Diagnose names the first numeric fault of f at x, or nil.
 func (f *Func) Diagnose(x float64) *expr.Fault { return f.m.Diagnose(x, f.Theta) }
 

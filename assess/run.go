@@ -274,7 +274,10 @@ type trackSlot struct {
 
 func newWorker(m *Model, d *sample.Design, nominal *Snapshot) (*worker, error) {
 	fopt := steady.DefaultOptions()
-	fopt.QuadRelTol = 1e-6 // barriers enter 0.1%-accurate quantile sketches
+	// Barriers enter 0.1%-accurate quantile sketches, and only escape
+	// barriers over thresholds are reported.
+	fopt.QuadRelTol = 1e-6
+	fopt.ThresholdBarriersOnly = true
 	finder, err := steady.NewFinder(fopt)
 	if err != nil {
 		return nil, err

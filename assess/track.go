@@ -27,7 +27,6 @@ type tracker struct {
 	roots    []steady.Equilibrium // the draw's equilibria (t = 1), from the scan
 	th0, th1 []float64 // endpoints of the path; f.Theta is the moving point
 	lo, hi   float64   // domain
-	c, e     [2]float64
 	calls    int // evaluations, for benchmarks and tests
 }
 
@@ -48,8 +47,7 @@ func (tr *tracker) at(t float64) {
 // slope evaluates g and ∂g/∂x at x for the θ last set.
 func (tr *tracker) slope(x float64) (g, gx float64) {
 	tr.calls++
-	tr.f.Taylor(x, tr.c[:], tr.e[:])
-	return tr.c[0], tr.c[1]
+	return tr.f.Slope(x)
 }
 
 // jet returns g, ∂g/∂x and ∂g/∂t at (x, t), leaving f.Theta at θ(t).

@@ -77,3 +77,14 @@ func BenchmarkParamGrad(b *testing.B) {
 		i++
 	}
 }
+
+func BenchmarkSlope(b *testing.B) {
+	m := mustCompile(b, lakeRate, lakeEnv).NewMachine()
+	b.ReportAllocs()
+	i := 0
+	for b.Loop() {
+		f, fx := m.Slope(0.5+0.125*float64(i&15), lakeTheta)
+		sink += f + fx
+		i++
+	}
+}

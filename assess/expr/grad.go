@@ -23,54 +23,7 @@ func (m *Machine) ParamGrad(x float64, theta []float64, df, dfx []float64) float
 		panic(fmt.Sprintf("expr: ParamGrad needs len(df), len(dfx) ≥ %d", np))
 	}
 	v, vd := m.gv, m.gd
-	m.load(v, x, theta)
-	vd[regState] = 1
-
-	// Forward sweep: values and d/dx tangents.
-	for i := range p.code {
-		in := &p.code[i]
-		a, b := v[in.a], v[in.b]
-		ad, bd := vd[in.a], vd[in.b]
-		var w, wd float64
-		switch in.op {
-		case opAdd:
-			w, wd = a+b, ad+bd
-		case opSub:
-			w, wd = a-b, ad-bd
-		case opMul:
-			w, wd = a*b, ad*b+a*bd
-		case opDiv:
-			w = a / b
-			wd = (ad - w*bd) / b
-		case opNeg:
-			w, wd = -a, -ad
-		case opPow:
-			w = math.Pow(a, b)
-			if ad != 0 {
-				wd = powDa(a, b) * ad
-			}
-			if bd != 0 {
-				wd += w * math.Log(a) * bd
-			}
-		case opMin, opMax:
-			wd = bd
-			if pickA(a, b, ad, bd, in.op == opMax) {
-				wd = ad
-			}
-			if in.op == opMax {
-				w = math.Max(a, b)
-			} else {
-				w = math.Min(a, b)
-			}
-		default:
-			var d1 float64
-			w, d1, _ = unary(in.op, a, ad)
-			if ad != 0 {
-				wd = d1 * ad
-			}
-		}
-		v[in.dst], vd[in.dst] = w, wd
-	}
+	m.forward(x, theta)
 
 	// Reverse sweep: adjoints ā = ∂f/∂a and their x-tangents.
 	bar, bard := m.gb, m.gbd
@@ -264,4 +217,72 @@ func unary(op opcode, a, ad float64) (w, d1, d2 float64) {
 		return w, s, -2 * w * s
 	}
 	return math.NaN(), math.NaN(), math.NaN()
+}
+
+// forward runs the forward sweep of ParamGrad: every register's value and
+// its derivative with respect to x (dual numbers; Griewank & Walther 2008,
+// ch. 3), into m.gv and m.gd.
+func (m *Machine) forward(x float64, theta []float64) {
+	p := m.p
+	v, vd := m.gv, m.gd
+	m.load(v, x, theta)
+	vd[regState] = 1
+	for i := range p.code {
+		in := &p.code[i]
+		a, b := v[in.a], v[in.b]
+		ad, bd := vd[in.a], vd[in.b]
+		var w, wd float64
+		switch in.op {
+		case opAdd:
+			w, wd = a+b, ad+bd
+		case opSub:
+			w, wd = a-b, ad-bd
+		case opMul:
+			w, wd = a*b, ad*b+a*bd
+		case opDiv:
+			w = a / b
+			wd = (ad - w*bd) / b
+		case opNeg:
+			w, wd = -a, -ad
+		case opPow:
+			w = math.Pow(a, b)
+			if ad != 0 {
+				// b·a^(b−1) as b·w/a saves a second Pow where a ≠ 0.
+				if a != 0 && !math.IsInf(w, 0) && w != 0 {
+					wd = b * w / a * ad
+				} else {
+					wd = powDa(a, b) * ad
+				}
+			}
+			if bd != 0 {
+				wd += w * math.Log(a) * bd
+			}
+		case opMin, opMax:
+			wd = bd
+			if pickA(a, b, ad, bd, in.op == opMax) {
+				wd = ad
+			}
+			if in.op == opMax {
+				w = math.Max(a, b)
+			} else {
+				w = math.Min(a, b)
+			}
+		default:
+			var d1 float64
+			w, d1, _ = unary(in.op, a, ad)
+			if ad != 0 {
+				wd = d1 * ad
+			}
+		}
+		v[in.dst], vd[in.dst] = w, wd
+	}
+}
+
+// Slope returns f(x; θ) and ∂f/∂x by one forward sweep of dual numbers,
+// without the Taylor arithmetic's error bounds: the cheap first derivative
+// that continuation's Newton steps need. It does not allocate.
+func (m *Machine) Slope(x float64, theta []float64) (f, fx float64) {
+	m.forward(x, theta)
+	out := m.p.out
+	return m.gv[out], m.gd[out]
 }

@@ -410,14 +410,14 @@ func (fz *Finder) equilibrium(cd *cand, k int) Equilibrium {
 	// Barriers V(edge) − V(x*), V = −∫ f dx.
 	eq.Barrier = [2]float64{0, 0}
 	if eq.Basin[0] < cd.span[0] {
-		if eq.BasinAtSingular[0] {
+		if eq.BasinAtSingular[0] || (fz.opt.ThresholdBarriersOnly && eq.BasinAtDomainEnd[0]) {
 			eq.Barrier[0] = math.NaN()
 		} else {
 			eq.Barrier[0] = fz.segIntegral(k)
 		}
 	}
 	if eq.Basin[1] > cd.span[1] {
-		if eq.BasinAtSingular[1] {
+		if eq.BasinAtSingular[1] || (fz.opt.ThresholdBarriersOnly && eq.BasinAtDomainEnd[1]) {
 			eq.Barrier[1] = math.NaN()
 		} else {
 			eq.Barrier[1] = -fz.segIntegral(k + 1)

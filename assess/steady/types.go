@@ -167,6 +167,12 @@ type Options struct {
 	// NoBarriers skips the barrier quadrature (Barrier is then NaN), which
 	// saves about QuadNodes evaluations per interval between equilibria.
 	NoBarriers bool
+	// ThresholdBarriersOnly computes barriers only toward basin edges
+	// that are thresholds between equilibria, not domain ends (Barrier is
+	// NaN toward a domain end). The Monte Carlo engine reports only
+	// escape barriers over thresholds, so it saves the integrals over the
+	// outermost segments.
+	ThresholdBarriersOnly bool
 	// MaxCalls caps the calls of f (Eval and Taylor) per Find; when it is
 	// reached the search stops with a warning.
 	MaxCalls int
