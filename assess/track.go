@@ -25,9 +25,9 @@ import (
 type tracker struct {
 	f        *Func
 	roots    []steady.Equilibrium // the draw's equilibria (t = 1), from the scan
-	th0, th1 []float64 // endpoints of the path; f.Theta is the moving point
-	lo, hi   float64   // domain
-	calls    int // evaluations, for benchmarks and tests
+	th0, th1 []float64            // endpoints of the path; f.Theta is the moving point
+	lo, hi   float64              // domain
+	calls    int                  // evaluations, for benchmarks and tests
 }
 
 const (
