@@ -64,6 +64,7 @@ func benchTaylor(b *testing.B, order int) {
 
 func BenchmarkTaylor(b *testing.B) {
 	b.Run("order=1", func(b *testing.B) { benchTaylor(b, 1) })
+	b.Run("order=2", func(b *testing.B) { benchTaylor(b, 2) })
 	b.Run("order=7", func(b *testing.B) { benchTaylor(b, 7) })
 }
 
