@@ -38,6 +38,11 @@ type Options struct {
 	// Progress, when set, is called from one goroutine with the number of
 	// draws done and the number planned so far.
 	Progress func(done, planned int)
+	// Points, when set, replaces the sampling design: it fills theta (in
+	// parameter order) for draw i, and must depend only on i. Sensitivity
+	// designs and driver sweeps with common random numbers use it; Plan
+	// and Seed are then only recorded.
+	Points func(i int, theta []float64)
 }
 
 // Limits on a run.
@@ -79,6 +84,7 @@ type Draw struct {
 type TrackedDraw struct {
 	Exists bool
 	X      float64
+	Slope  float64
 	Class  steady.Class
 	Side   steady.Side
 }
@@ -94,6 +100,9 @@ func Run(ctx context.Context, m *Model, opt Options) (*Result, error) {
 	}
 	if opt.UntilHalfWidth < 0 || opt.UntilHalfWidth >= 0.5 || math.IsNaN(opt.UntilHalfWidth) {
 		return nil, fmt.Errorf("until-halfwidth must be in (0, 0.5), got %v", opt.UntilHalfWidth)
+	}
+	if opt.Points != nil && opt.UntilHalfWidth > 0 {
+		return nil, errors.New("until-halfwidth needs the scenario's own sampling design, not given points")
 	}
 	maxDraws := opt.Draws
 	if opt.UntilHalfWidth > 0 {
@@ -113,14 +122,18 @@ func Run(ctx context.Context, m *Model, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	design, err := m.Design(opt.Plan, opt.Draws, opt.Seed)
-	if err != nil {
-		return nil, err
+	points := opt.Points
+	if points == nil {
+		design, err := m.Design(opt.Plan, opt.Draws, opt.Seed)
+		if err != nil {
+			return nil, err
+		}
+		points = design.Draw
 	}
 	total := newAggregate(len(nominal.Equilibria))
 	ws := make([]*worker, workers)
 	for w := range ws {
-		ws[w], err = newWorker(m, design, nominal)
+		ws[w], err = newWorker(m, points, nominal)
 		if err != nil {
 			return nil, err
 		}
@@ -253,7 +266,7 @@ func runBatch(ctx context.Context, ws []*worker, from, to int, opt Options) erro
 // tracker and aggregate.
 type worker struct {
 	m       *Model
-	design  *sample.Design
+	points  func(i int, theta []float64)
 	nominal *Snapshot
 	f       *Func
 	finder  *steady.Finder
@@ -272,7 +285,7 @@ type trackSlot struct {
 	slope  float64
 }
 
-func newWorker(m *Model, d *sample.Design, nominal *Snapshot) (*worker, error) {
+func newWorker(m *Model, points func(int, []float64), nominal *Snapshot) (*worker, error) {
 	fopt := steady.DefaultOptions()
 	// Barriers enter 0.1%-accurate quantile sketches, and only escape
 	// barriers over thresholds are reported.
@@ -285,7 +298,7 @@ func newWorker(m *Model, d *sample.Design, nominal *Snapshot) (*worker, error) {
 	work := make([]float64, len(m.Names))
 	w := &worker{
 		m:       m,
-		design:  d,
+		points:  points,
 		nominal: nominal,
 		f:       m.Func(work),
 		finder:  finder,
@@ -301,7 +314,7 @@ func newWorker(m *Model, d *sample.Design, nominal *Snapshot) (*worker, error) {
 // draw assesses draw i and adds it to the worker's aggregate; rec, when
 // not nil, receives the draw's record.
 func (w *worker) draw(i int, rec *Draw) {
-	w.design.Draw(i, w.theta)
+	w.points(i, w.theta)
 	if rec != nil {
 		rec.Index = i
 		rec.Theta = append(rec.Theta[:0], w.theta...)
@@ -362,9 +375,9 @@ func (w *worker) draw(i int, rec *Draw) {
 		}
 		for k := range w.slots {
 			s := &w.slots[k]
-			td := TrackedDraw{Exists: s.exists, X: math.NaN()}
+			td := TrackedDraw{Exists: s.exists, X: math.NaN(), Slope: math.NaN()}
 			if s.exists {
-				td.X = s.x
+				td.X, td.Slope = s.x, s.slope
 				if s.idx >= 0 {
 					td.Class, td.Side = eqs[s.idx].Class, eqs[s.idx].AttractsFrom
 				} else {
