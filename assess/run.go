@@ -43,6 +43,13 @@ type Options struct {
 	// designs and driver sweeps with common random numbers use it; Plan
 	// and Seed are then only recorded.
 	Points func(i int, theta []float64)
+	// Extra, when set, is called once per worker to make a function that
+	// runs in that worker after each draw is assessed, with the worker's
+	// evaluator bound to the draw's parameters and the draw's record. It
+	// may compute further per-draw figures (a tipping point, say) into
+	// rec.Extra, which reaches Sink in draw order. It must depend only on
+	// the draw, so that results stay independent of the worker count.
+	Extra func() func(f *Func, rec *Draw)
 }
 
 // Limits on a run.
@@ -78,6 +85,8 @@ type Draw struct {
 	Pattern []steady.Class
 	// Outcome is the label reached from the current state ("" without one).
 	Outcome string
+	// Extra holds figures computed by Options.Extra (nil otherwise).
+	Extra []float64
 }
 
 // TrackedDraw is one tracked equilibrium in one draw.
@@ -136,6 +145,9 @@ func Run(ctx context.Context, m *Model, opt Options) (*Result, error) {
 		ws[w], err = newWorker(m, points, nominal)
 		if err != nil {
 			return nil, err
+		}
+		if opt.Extra != nil {
+			ws[w].extra = opt.Extra()
 		}
 	}
 	done, end := 0, opt.Draws
@@ -201,7 +213,7 @@ func runBatch(ctx context.Context, ws []*worker, from, to int, opt Options) erro
 				lo := from + b*blockSize
 				hi := min(lo+blockSize, to)
 				var recs []Draw
-				if opt.Sink != nil {
+				if opt.Sink != nil || opt.Extra != nil {
 					select {
 					case recs = <-free:
 					default:
@@ -215,6 +227,10 @@ func runBatch(ctx context.Context, ws []*worker, from, to int, opt Options) erro
 						rec = &recs[i-lo]
 					}
 					w.draw(i, rec)
+					if w.extra != nil {
+						copy(w.f.Theta, w.theta)
+						w.extra(w.f, rec)
+					}
 				}
 				select {
 				case results <- finished{b, recs}:
@@ -233,6 +249,12 @@ func runBatch(ctx context.Context, ws []*worker, from, to int, opt Options) erro
 			opt.Progress(doneDraws, to)
 		}
 		if opt.Sink == nil || firstErr != nil {
+			if r.recs != nil {
+				select {
+				case free <- r.recs:
+				default:
+				}
+			}
 			continue
 		}
 		pending[r.b] = r.recs
@@ -267,6 +289,7 @@ func runBatch(ctx context.Context, ws []*worker, from, to int, opt Options) erro
 type worker struct {
 	m       *Model
 	points  func(i int, theta []float64)
+	extra   func(f *Func, rec *Draw)
 	nominal *Snapshot
 	f       *Func
 	finder  *steady.Finder
@@ -319,6 +342,7 @@ func (w *worker) draw(i int, rec *Draw) {
 		rec.Index = i
 		rec.Theta = append(rec.Theta[:0], w.theta...)
 		rec.Failed, rec.Outcome = "", ""
+		rec.Extra = rec.Extra[:0]
 		rec.Tracked = rec.Tracked[:0]
 		rec.Pattern = rec.Pattern[:0]
 	}
