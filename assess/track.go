@@ -34,7 +34,8 @@ const (
 	maxArcSteps = 200
 	newtonMax   = 8
 	minArcStep  = 1e-7
-	dtDiff      = 1e-7 // difference step in t for ∂g/∂t
+	dtDiff      = 1e-7     // difference step in t for ∂g/∂t
+	foldStep    = 1.0 / 16 // longest step after which a turn is taken for a fold
 )
 
 // at sets f.Theta = θ(t).
@@ -140,6 +141,13 @@ func (tr *tracker) follow(x0, slope0, scale float64) (x float64, idx int, ok boo
 			ntu, ntt = -ntu, -ntt
 		}
 		if ntt <= 0 || ngx*gx <= 0 {
+			// The curve turned (or the slope changed sign): a fold, unless
+			// a long step jumped onto another branch. Believe it only
+			// after a short step.
+			if s > foldStep {
+				s /= 2
+				continue
+			}
 			return math.NaN(), -1, false // turned back at a fold
 		}
 		u, t, tu, tt = nu, nt, ntu, ntt
