@@ -15,12 +15,22 @@ import (
 // previous point; the branch is lost when Newton fails or the slope sign
 // flips (a fold), or when it leaves the domain.
 func denseFollow(tr *tracker, x0, sgn float64, steps int) (float64, bool) {
+	x, _, ok := denseFollowMin(tr, x0, sgn, steps)
+	return x, ok
+}
+
+// denseFollowMin is denseFollow that also reports the smallest |∂g/∂x| met
+// on the way: a path that grazes a cusp (|∂g/∂x| → 0 without a sign
+// change) is ill-conditioned, and two sound methods may disagree there.
+func denseFollowMin(tr *tracker, x0, sgn float64, steps int) (float64, float64, bool) {
 	x := x0
+	minSlope := math.Inf(1)
 	for i := 1; i <= steps; i++ {
 		tr.at(float64(i) / float64(steps))
 		ok := false
 		for k := 0; k < 30; k++ {
 			g, gx := tr.slope(x)
+			minSlope = math.Min(minSlope, math.Abs(gx))
 			if math.IsNaN(g) || gx*sgn <= 0 {
 				break
 			}
@@ -32,23 +42,41 @@ func denseFollow(tr *tracker, x0, sgn float64, steps int) (float64, bool) {
 			}
 		}
 		if !ok {
-			return math.NaN(), false
+			return math.NaN(), minSlope, false
 		}
 	}
-	return tr.inside(x)
+	x, ok := tr.inside(x)
+	return x, minSlope, ok
 }
 
 func TestTrackerAgreesWithDenseContinuation(t *testing.T) {
 	// Reference: dense natural-parameter continuation (Allgower & Georg
 	// 2003, ch. 2), an independent and slow method; common practice.
-	for _, demo := range []string{"lake", "reactor", "fishery"} {
-		s, err := scenarios.LoadDemo(demo)
-		if err != nil {
-			t.Fatal(err)
-		}
-		m, err := Compile(s)
-		if err != nil {
-			t.Fatal(err)
+	// The last case puts the lake near its cusp (low recycling
+	// steepness q), where branches fold and re-form along the path.
+	nearCusp := `holdfast: 1
+title: lake near the cusp
+state: {symbol: P, domain: [0, 5]}
+rate: "L - s*P + r*P^q/(m^q + P^q)"
+parameters:
+  L: {dist: normal, mean: 0.12, sd: 0.02}
+  s: {dist: normal, mean: 0.62, sd: 0.03}
+  r: {value: 1}
+  m: {value: 1}
+  q: {dist: uniform, min: 2.0, max: 2.8, nominal: 2.6}
+`
+	for _, demo := range []string{"lake", "reactor", "fishery", "near-cusp"} {
+		var m *Model
+		if demo == "near-cusp" {
+			m = mustModel(t, nearCusp)
+		} else {
+			s, err := scenarios.LoadDemo(demo)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if m, err = Compile(s); err != nil {
+				t.Fatal(err)
+			}
 		}
 		nom, err := m.Analyze(m.Nominal)
 		if err != nil {
@@ -62,7 +90,7 @@ func TestTrackerAgreesWithDenseContinuation(t *testing.T) {
 		work := make([]float64, len(m.Names))
 		tr := tracker{f: m.Func(work), th0: m.Nominal, th1: theta, lo: m.Domain[0], hi: m.Domain[1]}
 		scale := isolation(nom.Equilibria, m.Domain)
-		disagree := 0
+		disagree, grazing := 0, 0
 		for i := 0; i < 300; i++ {
 			d.Draw(i, theta)
 			res, err := steady.Find(m.Func(slices.Clone(theta)), m.Domain[0], m.Domain[1], steady.DefaultOptions())
@@ -75,7 +103,11 @@ func TestTrackerAgreesWithDenseContinuation(t *testing.T) {
 					continue
 				}
 				x1, _, ok1 := tr.follow(e.X, e.Slope, scale[k])
-				x2, ok2 := denseFollow(&tr, e.X, math.Copysign(1, e.Slope), 3000)
+				x2, minSlope, ok2 := denseFollowMin(&tr, e.X, math.Copysign(1, e.Slope), 3000)
+				if minSlope < 1e-3*math.Abs(e.Slope) {
+					grazing++ // passes within rounding of a cusp: skip, but count
+					continue
+				}
 				if ok1 != ok2 || (ok1 && math.Abs(x1-x2) > 1e-8*(1+math.Abs(x2))) {
 					disagree++
 					if disagree <= 5 {
@@ -86,6 +118,9 @@ func TestTrackerAgreesWithDenseContinuation(t *testing.T) {
 		}
 		if disagree > 0 {
 			t.Errorf("%s: %d disagreements", demo, disagree)
+		}
+		if grazing > 300*len(nom.Equilibria)/10 {
+			t.Errorf("%s: %d paths graze a cusp; the case no longer tests much", demo, grazing)
 		}
 	}
 }

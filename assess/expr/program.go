@@ -190,6 +190,7 @@ func (op opcode) commutative() bool {
 type instr struct {
 	op    opcode
 	xdep  bool // dst depends on the state
+	axdep bool // operand a depends on the state
 	bxdep bool // operand b depends on the state (selects the Taylor rule for opPow)
 	a, b  int32
 	dst   int32
@@ -292,7 +293,7 @@ func (l *lowerer) emit(op opcode, a, b int32) int32 {
 	r := l.newReg()
 	p.xdep[r] = p.xdep[a] || p.xdep[b]
 	p.pdep[r] = p.pdep[a] || p.pdep[b]
-	p.code = append(p.code, instr{op: op, xdep: p.xdep[r], bxdep: p.xdep[b], a: a, b: b, dst: r})
+	p.code = append(p.code, instr{op: op, xdep: p.xdep[r], axdep: p.xdep[a], bxdep: p.xdep[b], a: a, b: b, dst: r})
 	l.cse[key] = r
 	return r
 }
