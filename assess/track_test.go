@@ -25,22 +25,44 @@ func denseFollow(tr *tracker, x0, sgn float64, steps int) (float64, bool) {
 func denseFollowMin(tr *tracker, x0, sgn float64, steps int) (float64, float64, bool) {
 	x := x0
 	minSlope := math.Inf(1)
-	for i := 1; i <= steps; i++ {
-		tr.at(float64(i) / float64(steps))
-		ok := false
+	// newton corrects x at the θ last set; it fails when Newton does not
+	// converge or the slope changes sign.
+	newton := func(x float64) (float64, bool) {
 		for k := 0; k < 30; k++ {
 			g, gx := tr.slope(x)
-			minSlope = math.Min(minSlope, math.Abs(gx))
 			if math.IsNaN(g) || gx*sgn <= 0 {
-				break
+				return x, false
 			}
 			dx := g / gx
 			x -= dx
 			if math.Abs(dx) <= 1e-12*math.Max(1, math.Abs(x)) {
-				ok = true
-				break
+				minSlope = math.Min(minSlope, math.Abs(gx)) // on the branch
+				return x, true
 			}
 		}
+		return x, false
+	}
+	// step goes from t0 to t1, halving the step where Newton fails, down
+	// to 2^-12 of a step: a failure then is a fold, not a too-long step.
+	var step func(x, t0, t1 float64, depth int) (float64, bool)
+	step = func(x, t0, t1 float64, depth int) (float64, bool) {
+		tr.at(t1)
+		if xn, ok := newton(x); ok {
+			return xn, true
+		}
+		if depth == 12 {
+			return x, false
+		}
+		mid := (t0 + t1) / 2
+		xm, ok := step(x, t0, mid, depth+1)
+		if !ok {
+			return xm, false
+		}
+		return step(xm, mid, t1, depth+1)
+	}
+	for i := 1; i <= steps; i++ {
+		var ok bool
+		x, ok = step(x, float64(i-1)/float64(steps), float64(i)/float64(steps), 0)
 		if !ok {
 			return math.NaN(), minSlope, false
 		}
@@ -104,11 +126,11 @@ parameters:
 				}
 				x1, _, ok1 := tr.follow(e.X, e.Slope, scale[k])
 				x2, minSlope, ok2 := denseFollowMin(&tr, e.X, math.Copysign(1, e.Slope), 3000)
-				if minSlope < 1e-3*math.Abs(e.Slope) {
-					grazing++ // passes within rounding of a cusp: skip, but count
-					continue
-				}
 				if ok1 != ok2 || (ok1 && math.Abs(x1-x2) > 1e-8*(1+math.Abs(x2))) {
+					if minSlope < 1e-3*math.Abs(e.Slope) {
+						grazing++ // the path grazes a cusp: ill-conditioned, counted
+						continue
+					}
 					disagree++
 					if disagree <= 5 {
 						t.Errorf("%s draw %d %s: arclength (%v, %v), dense (%v, %v)", demo, i, e.Label, x1, ok1, x2, ok2)
@@ -119,8 +141,8 @@ parameters:
 		if disagree > 0 {
 			t.Errorf("%s: %d disagreements", demo, disagree)
 		}
-		if grazing > 300*len(nom.Equilibria)/10 {
-			t.Errorf("%s: %d paths graze a cusp; the case no longer tests much", demo, grazing)
+		if grazing > 300*len(nom.Equilibria)/50 {
+			t.Errorf("%s: %d disagreements on paths that graze a cusp, more than 2%%", demo, grazing)
 		}
 	}
 }
