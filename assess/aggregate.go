@@ -337,18 +337,20 @@ type Result struct {
 	Warnings           []string
 }
 
-func (a *aggregate) result(m *Model, nominal *Snapshot, opt Options, draws int) *Result {
+func (a *aggregate) finish(m *Model, nominal *Snapshot, opt Options, draws int, conv Convergence) *Result {
 	r := &Result{
-		Draws:      draws,
-		Succeeded:  a.n,
-		Seed:       opt.Seed,
-		Plan:       opt.Plan,
-		Names:      m.Names,
-		Nominal:    nominal,
-		Untracked:  prob(a.untracked, a.n),
-		ScanMissed: a.scanMissed,
-		Warned:     a.warned,
+		Draws:       draws,
+		Succeeded:   a.n,
+		Seed:        opt.Seed,
+		Plan:        opt.Plan,
+		Names:       m.Names,
+		Nominal:     nominal,
+		Untracked:   prob(a.untracked, a.n),
+		ScanMissed:  a.scanMissed,
+		Warned:      a.warned,
+		Convergence: conv,
 	}
+	r.Convergence.MaxHalfWidth = a.maxHalfWidth()
 	for k, e := range nominal.Equilibria {
 		t := &a.tracked[k]
 		r.Tracked = append(r.Tracked, Tracked{

@@ -50,6 +50,8 @@ type Options struct {
 	// rec.Extra, which reaches Sink in draw order. It must depend only on
 	// the draw, so that results stay independent of the worker count.
 	Extra func() func(f *Func, rec *Draw)
+	// Shard restricts RunPartial to the draws i with i mod N = K.
+	Shard Shard
 }
 
 // Limits on a run.
@@ -123,6 +125,45 @@ func Run(ctx context.Context, m *Model, opt Options) (*Result, error) {
 			return nil, fmt.Errorf("max-draws (%d) is below draws (%d)", maxDraws, opt.Draws)
 		}
 	}
+	if opt.Shard.N > 1 {
+		return nil, errors.New("a shard of a run gives a Partial: use RunPartial and Merge")
+	}
+	e, err := newEngine(m, opt)
+	if err != nil {
+		return nil, err
+	}
+	done, end := 0, opt.Draws
+	conv := Convergence{Target: opt.UntilHalfWidth}
+	for {
+		if err := e.batch(ctx, done, end, opt, Shard{0, 1}); err != nil {
+			return nil, err
+		}
+		done = end
+		conv.Batches++
+		if opt.UntilHalfWidth == 0 {
+			break
+		}
+		conv.MaxHalfWidth = e.total.maxHalfWidth()
+		if conv.MaxHalfWidth <= opt.UntilHalfWidth {
+			conv.Reached = true
+			break
+		}
+		if done >= maxDraws {
+			break
+		}
+		end = min(2*done, maxDraws)
+	}
+	return e.total.finish(m, e.nominal, opt, done, conv), nil
+}
+
+// engine is a pool of workers over one model with the running total.
+type engine struct {
+	nominal *Snapshot
+	ws      []*worker
+	total   *aggregate
+}
+
+func newEngine(m *Model, opt Options) (*engine, error) {
 	workers := opt.Workers
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
@@ -139,51 +180,38 @@ func Run(ctx context.Context, m *Model, opt Options) (*Result, error) {
 		}
 		points = design.Draw
 	}
-	total := newAggregate(len(nominal.Equilibria))
-	ws := make([]*worker, workers)
-	for w := range ws {
-		ws[w], err = newWorker(m, points, nominal)
+	e := &engine{nominal: nominal, ws: make([]*worker, workers), total: newAggregate(len(nominal.Equilibria))}
+	for w := range e.ws {
+		e.ws[w], err = newWorker(m, points, nominal)
 		if err != nil {
 			return nil, err
 		}
 		if opt.Extra != nil {
-			ws[w].extra = opt.Extra()
+			e.ws[w].extra = opt.Extra()
 		}
 	}
-	done, end := 0, opt.Draws
-	conv := Convergence{Target: opt.UntilHalfWidth}
-	for {
-		if err := runBatch(ctx, ws, done, end, opt); err != nil {
-			return nil, err
-		}
-		for _, w := range ws {
-			total.merge(w.agg)
-			w.agg = newAggregate(len(nominal.Equilibria))
-		}
-		done = end
-		conv.Batches++
-		if opt.UntilHalfWidth == 0 {
-			break
-		}
-		conv.MaxHalfWidth = total.maxHalfWidth()
-		if conv.MaxHalfWidth <= opt.UntilHalfWidth {
-			conv.Reached = true
-			break
-		}
-		if done >= maxDraws {
-			break
-		}
-		end = min(2*done, maxDraws)
-	}
-	res := total.result(m, nominal, opt, done)
-	conv.MaxHalfWidth = total.maxHalfWidth()
-	res.Convergence = conv
-	return res, nil
+	return e, nil
 }
 
-// runBatch assesses draws [from, to) on the workers, block by block, and
-// feeds the sink in draw order.
-func runBatch(ctx context.Context, ws []*worker, from, to int, opt Options) error {
+// batch assesses the shard's draws of local index [from, to) and adds
+// them to the total. Worker aggregates hold only integer counts and
+// order-free sketches, so the total does not depend on which worker took
+// which draw.
+func (e *engine) batch(ctx context.Context, from, to int, opt Options, sh Shard) error {
+	if err := runBatch(ctx, e.ws, from, to, opt, sh); err != nil {
+		return err
+	}
+	for _, w := range e.ws {
+		e.total.merge(w.agg)
+		w.agg = newAggregate(len(e.nominal.Equilibria))
+	}
+	return nil
+}
+
+// runBatch assesses the shard's draws of local index [from, to) (global
+// index i = K + j·N) on the workers, block by block, and feeds the sink in
+// draw order.
+func runBatch(ctx context.Context, ws []*worker, from, to int, opt Options, sh Shard) error {
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
 	nBlocks := (to - from + blockSize - 1) / blockSize
@@ -221,12 +249,12 @@ func runBatch(ctx context.Context, ws []*worker, from, to int, opt Options) erro
 					}
 					recs = recs[:hi-lo]
 				}
-				for i := lo; i < hi; i++ {
+				for j := lo; j < hi; j++ {
 					var rec *Draw
 					if recs != nil {
-						rec = &recs[i-lo]
+						rec = &recs[j-lo]
 					}
-					w.draw(i, rec)
+					w.draw(sh.K+j*sh.N, rec)
 					if w.extra != nil {
 						copy(w.f.Theta, w.theta)
 						w.extra(w.f, rec)

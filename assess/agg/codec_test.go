@@ -1,0 +1,47 @@
+package agg
+
+import (
+	"encoding/json"
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+func TestSketchRoundTripMergesExactly(t *testing.T) {
+	// A sketch written and read back must merge exactly as the original
+	// (the shard/merge contract; common practice, no source).
+	rng := rand.New(rand.NewPCG(8, 9))
+	a, b := NewSketch(), NewSketch()
+	for i := 0; i < 5000; i++ {
+		a.Add(rng.NormFloat64() * math.Exp(rng.NormFloat64()))
+		b.Add(float64(rng.IntN(3)) * rng.Float64())
+	}
+	raw, err := json.Marshal(a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	back := NewSketch()
+	if err := json.Unmarshal(raw, back); err != nil {
+		t.Fatal(err)
+	}
+	m1, m2 := NewSketch(), NewSketch()
+	m1.Merge(a)
+	m1.Merge(b)
+	m2.Merge(back)
+	m2.Merge(b)
+	for _, q := range []float64{0, 0.05, 0.5, 0.95, 1} {
+		if m1.Quantile(q) != m2.Quantile(q) {
+			t.Errorf("q=%v: %v vs %v after round trip", q, m1.Quantile(q), m2.Quantile(q))
+		}
+	}
+	for _, bad := range []string{
+		`{"count": 2, "zero": 0, "pos": [[3, 1]], "neg": [], "min": 1, "max": 2}`,
+		`{"count": 1, "zero": 0, "pos": [[3, -1]], "neg": [], "min": 1, "max": 2}`,
+		`{"count": 2, "zero": 0, "pos": [[3, 1], [2, 1]], "neg": [], "min": 1, "max": 2}`,
+		`{"count": 1, "zero": 1, "pos": [], "neg": []}`,
+	} {
+		if err := json.Unmarshal([]byte(bad), NewSketch()); err == nil {
+			t.Errorf("accepted %s", bad)
+		}
+	}
+}

@@ -1,0 +1,211 @@
+package assess
+
+import (
+	"cmp"
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"slices"
+
+	"holdfast/assess/agg"
+)
+
+// Partial is the mergeable state of a Monte Carlo run or of one shard of
+// it: integer counts and exact quantile sketches, with no draw kept.
+// Merging the partials of every shard gives the same Result as one run
+// over all draws, whatever the order of merging.
+type Partial struct {
+	// Draws is the number of draws this partial covers.
+	Draws int
+	// Shard and Shards say which draws: those with index i mod Shards =
+	// Shard (Shards = 1 for a whole run).
+	Shard, Shards int
+	agg           *aggregate
+}
+
+// Shard selects the draws of one shard of a run: those whose index i
+// satisfies i mod N = K.
+type Shard struct{ K, N int }
+
+// RunPartial runs the draws of one shard (opt.Shard; the whole run when
+// N is 0) and returns their mergeable state.
+func RunPartial(ctx context.Context, m *Model, opt Options) (*Partial, error) {
+	if opt.UntilHalfWidth > 0 {
+		return nil, errors.New("until-halfwidth cannot be split into shards: its stopping rule needs every draw")
+	}
+	sh := opt.Shard
+	if sh.N == 0 {
+		sh = Shard{0, 1}
+	}
+	if sh.N < 1 || sh.K < 0 || sh.K >= sh.N {
+		return nil, fmt.Errorf("shard %d/%d: want 0 ≤ K < N", sh.K, sh.N)
+	}
+	e, err := newEngine(m, opt)
+	if err != nil {
+		return nil, err
+	}
+	n := shardSize(opt.Draws, sh)
+	if err := e.batch(ctx, 0, n, opt, sh); err != nil {
+		return nil, err
+	}
+	return &Partial{Draws: n, Shard: sh.K, Shards: sh.N, agg: e.total}, nil
+}
+
+// shardSize is the number of draws i < draws with i mod N = K.
+func shardSize(draws int, sh Shard) int {
+	if draws <= sh.K {
+		return 0
+	}
+	return (draws-sh.K-1)/sh.N + 1
+}
+
+// Merge combines the partials of all shards of one run into its Result.
+// Every shard 0..N−1 must be present exactly once, all with the same shard
+// count; opt must be the run's options (draws, seed, plan), which the
+// caller checks against the parts' records.
+func Merge(m *Model, opt Options, parts []*Partial) (*Result, error) {
+	if len(parts) == 0 {
+		return nil, errors.New("merge: no parts")
+	}
+	n := parts[0].Shards
+	seen := make([]bool, n)
+	for _, p := range parts {
+		if p.Shards != n {
+			return nil, fmt.Errorf("merge: shard %d/%d does not belong with shards of %d", p.Shard, p.Shards, n)
+		}
+		if seen[p.Shard] {
+			return nil, fmt.Errorf("merge: shard %d/%d given twice", p.Shard, n)
+		}
+		seen[p.Shard] = true
+		if want := shardSize(opt.Draws, Shard{p.Shard, n}); p.Draws != want {
+			return nil, fmt.Errorf("merge: shard %d/%d covers %d draws, want %d of %d", p.Shard, n, p.Draws, want, opt.Draws)
+		}
+	}
+	var missing []int
+	for k, ok := range seen {
+		if !ok {
+			missing = append(missing, k)
+		}
+	}
+	if len(missing) > 0 {
+		return nil, fmt.Errorf("merge: shards %v of %d missing", missing, n)
+	}
+	nominal, err := m.Analyze(m.Nominal)
+	if err != nil {
+		return nil, err
+	}
+	total := newAggregate(len(nominal.Equilibria))
+	for _, p := range parts {
+		if len(p.agg.tracked) != len(nominal.Equilibria) {
+			return nil, fmt.Errorf("merge: shard %d/%d tracks %d equilibria, the scenario %d", p.Shard, n, len(p.agg.tracked), len(nominal.Equilibria))
+		}
+		total.merge(p.agg)
+	}
+	return total.finish(m, nominal, opt, opt.Draws, Convergence{Batches: 1}), nil
+}
+
+// Stored forms.
+
+type countedJSON struct {
+	Reason string `json:"reason"`
+	N      int64  `json:"n"`
+	First  []int  `json:"first"`
+}
+
+type trackedAggJSON struct {
+	Exists     int64       `json:"exists"`
+	Attracting int64       `json:"attracting"`
+	Semistable int64       `json:"semistable"`
+	X          *agg.Sketch `json:"x"`
+	Slope      *agg.Sketch `json:"slope"`
+	ReturnTime *agg.Sketch `json:"return_time"`
+	Basin      *agg.Sketch `json:"basin_width"`
+	Barrier    *agg.Sketch `json:"barrier"`
+}
+
+type partialJSON struct {
+	Draws      int              `json:"draws"`
+	Shard      int              `json:"shard"`
+	Shards     int              `json:"shards"`
+	N          int64            `json:"assessed"`
+	Warned     int64            `json:"warned"`
+	ScanMissed int64            `json:"scan_missed"`
+	Untracked  int64            `json:"untracked"`
+	Failed     []countedJSON    `json:"failed"`
+	Faults     []countedJSON    `json:"faults"`
+	Regimes    [][2]uint64      `json:"regimes"`
+	Tracked    []trackedAggJSON `json:"tracked"`
+	Outcomes   []int64          `json:"outcomes"`
+}
+
+func countedList(m map[string]*counted) []countedJSON {
+	out := []countedJSON{}
+	for r, c := range m {
+		out = append(out, countedJSON{Reason: r, N: c.n, First: c.first})
+	}
+	slices.SortFunc(out, func(a, b countedJSON) int { return cmp.Compare(a.Reason, b.Reason) })
+	return out
+}
+
+// MarshalJSON writes the partial's exact state (deterministically: maps
+// are written sorted).
+func (p *Partial) MarshalJSON() ([]byte, error) {
+	a := p.agg
+	j := partialJSON{
+		Draws: p.Draws, Shard: p.Shard, Shards: p.Shards,
+		N: a.n, Warned: a.warned, ScanMissed: a.scanMissed, Untracked: a.untracked,
+		Failed: countedList(a.failed), Faults: countedList(a.faults),
+		Regimes: [][2]uint64{}, Outcomes: a.outcomes,
+	}
+	for k, v := range a.regimes {
+		j.Regimes = append(j.Regimes, [2]uint64{k, uint64(v)})
+	}
+	slices.SortFunc(j.Regimes, func(x, y [2]uint64) int { return cmp.Compare(x[0], y[0]) })
+	for _, t := range a.tracked {
+		j.Tracked = append(j.Tracked, trackedAggJSON{t.exists, t.attracting, t.semistable, t.x, t.slope, t.returnTime, t.basin, t.barrier})
+	}
+	return json.Marshal(j)
+}
+
+// UnmarshalJSON reads a partial written by MarshalJSON, checking counts.
+func (p *Partial) UnmarshalJSON(b []byte) error {
+	var j partialJSON
+	if err := json.Unmarshal(b, &j); err != nil {
+		return err
+	}
+	if j.Shards < 1 || j.Shard < 0 || j.Shard >= j.Shards || j.Draws < 0 || j.N < 0 || j.N > int64(j.Draws) {
+		return errors.New("partial: inconsistent shard or draw counts")
+	}
+	a := newAggregate(len(j.Tracked))
+	a.n, a.warned, a.scanMissed, a.untracked = j.N, j.Warned, j.ScanMissed, j.Untracked
+	for _, c := range j.Failed {
+		a.failed[c.Reason] = &counted{n: c.N, first: c.First}
+	}
+	for _, c := range j.Faults {
+		a.faults[c.Reason] = &counted{n: c.N, first: c.First}
+	}
+	var inRegimes int64
+	for _, r := range j.Regimes {
+		a.regimes[r[0]] = int64(r[1])
+		inRegimes += int64(r[1])
+	}
+	if inRegimes != a.n {
+		return fmt.Errorf("partial: regimes count %d draws, assessed %d", inRegimes, a.n)
+	}
+	for k, t := range j.Tracked {
+		if t.X == nil || t.Slope == nil || t.ReturnTime == nil || t.Basin == nil || t.Barrier == nil {
+			return errors.New("partial: tracked equilibrium without its sketches")
+		}
+		if t.Exists > a.n || t.Attracting > t.Exists || t.Semistable > t.Exists {
+			return errors.New("partial: tracked counts out of range")
+		}
+		a.tracked[k] = trackedAgg{t.Exists, t.Attracting, t.Semistable, t.X, t.Slope, t.ReturnTime, t.Basin, t.Barrier}
+	}
+	if len(j.Outcomes) != len(a.outcomes) {
+		return errors.New("partial: outcome list of the wrong length")
+	}
+	copy(a.outcomes, j.Outcomes)
+	*p = Partial{Draws: j.Draws, Shard: j.Shard, Shards: j.Shards, agg: a}
+	return nil
+}
