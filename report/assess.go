@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"holdfast/assess"
+	"holdfast/assess/sensitivity"
 )
 
 // AssessJSON is the JSON form of a Monte Carlo result.
@@ -29,7 +30,9 @@ type AssessJSON struct {
 	Faults      []CountedJSON   `json:"faults"`
 	Convergence ConvergenceJSON `json:"convergence"`
 	Warnings    []string        `json:"warnings"`
-	Caution     string          `json:"caution"`
+	// Sensitivity holds the screening measures (see NewScreeningJSON).
+	Sensitivity *ScreeningJSON `json:"sensitivity,omitempty"`
+	Caution     string         `json:"caution"`
 }
 
 // QuantilesJSON holds the 5, 25, 50, 75 and 95% quantiles of a figure over
@@ -217,6 +220,12 @@ func pc(v float64) string {
 
 // AssessTable writes the compact terminal summary of a Monte Carlo result.
 func AssessTable(w io.Writer, title, unit string, r *assess.Result) error {
+	return AssessTableScreened(w, title, unit, r, nil)
+}
+
+// AssessTableScreened is AssessTable with a section on which inputs drive
+// each verdict, from the screening measures s (none when s is nil).
+func AssessTableScreened(w io.Writer, title, unit string, r *assess.Result, s *sensitivity.Screening) error {
 	if title != "" {
 		fmt.Fprintf(w, "%s\n", title)
 	}
@@ -272,6 +281,11 @@ func AssessTable(w io.Writer, title, unit string, r *assess.Result) error {
 			}
 		}
 		if err := t.Render(); err != nil {
+			return err
+		}
+	}
+	if s != nil {
+		if err := screeningSection(w, s); err != nil {
 			return err
 		}
 	}

@@ -11,6 +11,7 @@ import (
 	"golang.org/x/term"
 
 	"holdfast/assess"
+	"holdfast/assess/sensitivity"
 	"holdfast/report"
 	"holdfast/sample"
 )
@@ -68,6 +69,10 @@ number of workers.`,
 			}
 			opt := assess.Options{Draws: draws, Seed: seed, Plan: kind, Workers: workers, UntilHalfWidth: halfWidth, MaxDraws: maxDrw}
 			scenarioPath := m.Scenario.File
+			// Screening measures (which inputs drive each verdict) from the
+			// same draws, at no extra model cost.
+			screen := sensitivity.NewScreen(m, 0)
+			opt.Sink = screen.Add
 
 			var csvOut *report.Staged
 			if drawsCSV != "" {
@@ -83,7 +88,11 @@ number of workers.`,
 				for _, e := range nominal.Equilibria {
 					labels = append(labels, e.Label)
 				}
-				opt.Sink = report.NewDrawsCSV(csvOut, m.Names, labels).Write
+				csvw := report.NewDrawsCSV(csvOut, m.Names, labels)
+				opt.Sink = func(block []assess.Draw) error {
+					screen.Add(block)
+					return csvw.Write(block)
+				}
 			}
 			var outFile *report.Staged
 			if out != "" {
@@ -108,7 +117,9 @@ number of workers.`,
 				return failed(err)
 			}
 			s := m.Scenario
+			scr := screen.Result()
 			doc := report.NewAssessJSON(version, s.File, s.Title, res)
+			doc.Sensitivity = report.NewScreeningJSON(scr)
 			if outFile != nil {
 				if err := report.WriteJSON(outFile, doc); err != nil {
 					return failed(err)
@@ -129,7 +140,7 @@ number of workers.`,
 			if quiet && out != "" {
 				return nil
 			}
-			return failed(report.AssessTable(w, s.Title, s.State.Unit, res))
+			return failed(report.AssessTableScreened(w, s.Title, s.State.Unit, res, scr))
 		},
 	}
 	f := c.Flags()
