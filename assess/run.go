@@ -634,7 +634,7 @@ func (w *worker) outcome(res *steady.Result, x0 float64) int {
 
 func (w *worker) outcomeName(out int) string {
 	if out < len(w.slots) {
-		return Label(out)
+		return w.nominal.Equilibria[out].Label // no formatting per draw
 	}
 	return outNames[out-len(w.slots)]
 }
