@@ -62,10 +62,28 @@ func benchTaylor(b *testing.B, order int) {
 	}
 }
 
+// benchTaylorNewTheta changes θ (the exponent q) at every call, so that
+// nothing computed from θ alone can be kept between calls.
+func benchTaylorNewTheta(b *testing.B, order int) {
+	m := mustCompile(b, lakeRate, lakeEnv).NewMachine()
+	c, e := make([]float64, order+1), make([]float64, order+1)
+	th := append([]float64(nil), lakeTheta...)
+	b.ReportAllocs()
+	i := 0
+	for b.Loop() {
+		th[4] = lakeTheta[4] + 0.001*float64(i&1)
+		m.Taylor(0.5+0.125*float64(i&15), th, c, e)
+		sink += c[order]
+		i++
+	}
+}
+
 func BenchmarkTaylor(b *testing.B) {
 	b.Run("order=1", func(b *testing.B) { benchTaylor(b, 1) })
 	b.Run("order=2", func(b *testing.B) { benchTaylor(b, 2) })
 	b.Run("order=7", func(b *testing.B) { benchTaylor(b, 7) })
+	b.Run("order=1,newtheta", func(b *testing.B) { benchTaylorNewTheta(b, 1) })
+	b.Run("order=2,newtheta", func(b *testing.B) { benchTaylorNewTheta(b, 2) })
 }
 
 func BenchmarkParamGrad(b *testing.B) {

@@ -415,9 +415,7 @@ func bsSinCos(a bser, hyp bool) (s, c bser) {
 	d := len(a) - 1
 	s, c = bzero(d), bzero(d)
 	if hyp {
-		ep, em := bexp(a[0]), bexp(bnew().Neg(a[0]))
-		s[0] = bquo(bsub(ep, em), bint(2))
-		c[0] = bquo(badd(ep, em), bint(2))
+		s[0], c[0] = bsinhcosh(a[0])
 	} else {
 		s[0], c[0] = bsincos(a[0])
 	}
@@ -435,6 +433,33 @@ func bsSinCos(a bser, hyp bool) (s, c bser) {
 		}
 	}
 	return s, c
+}
+
+// bsinhcosh: (e^x ∓ e^−x)/2, but by the power series for |x| < 1/2, where
+// the difference would cancel (for x near 1e-160 beyond refPrec bits).
+func bsinhcosh(x *big.Float) (s, c *big.Float) {
+	if x.MantExp(nil) > -1 {
+		ep, em := bexp(x), bexp(bnew().Neg(x))
+		return bquo(bsub(ep, em), bint(2)), bquo(badd(ep, em), bint(2))
+	}
+	prec := uint(refPrec + 64)
+	x2 := new(big.Float).SetPrec(prec).Mul(x, x)
+	s = new(big.Float).SetPrec(prec).Set(x)
+	c = new(big.Float).SetPrec(prec).SetInt64(1)
+	ts := new(big.Float).SetPrec(prec).Set(x)
+	tc := new(big.Float).SetPrec(prec).SetInt64(1)
+	for n := 1; n < 200; n++ {
+		tc.Mul(tc, x2)
+		tc.Quo(tc, new(big.Float).SetPrec(prec).SetInt64(int64((2*n-1)*(2*n))))
+		ts.Mul(ts, x2)
+		ts.Quo(ts, new(big.Float).SetPrec(prec).SetInt64(int64((2*n)*(2*n+1))))
+		c.Add(c, tc)
+		s.Add(s, ts)
+		if tc.Sign() == 0 || tc.MantExp(nil) < -int(prec)-16 {
+			break
+		}
+	}
+	return bnew().Set(s), bnew().Set(c)
 }
 
 // bpow0 is a^b for big a and b: repeated multiplication for an integer b,
@@ -477,6 +502,24 @@ func bsPow(a, b bser) bser {
 		return bsExp(bsMul(b, bsLog(a)), w0)
 	case a.isConst():
 		return bconst(w0, d)
+	}
+	if n, acc := b[0].Int64(); b[0].IsInt() && acc == big.Exact && n >= -64 && n <= 64 {
+		// Integer exponent: Cauchy powers, free of the division by a₀ of the
+		// recurrence below, which cancels badly when a₀ is tiny.
+		m := n
+		if m < 0 {
+			m = -m
+		}
+		w := bconst(bint(1), d)
+		for i := int64(0); i < m; i++ {
+			w = bsMul(w, a)
+		}
+		if n < 0 {
+			w = bsDiv(bconst(bint(1), d), w)
+		}
+		return w
+	}
+	switch {
 	case a[0].Sign() != 0:
 		// k a0 w_k = Σ_{j<k} (b(k−j) − j) a_{k−j} w_j
 		w := bzero(d)
@@ -488,13 +531,6 @@ func bsPow(a, b bser) bser {
 				s.Add(s, bmul(bmul(al, a[k-j]), w[j]))
 			}
 			w[k] = bquo(s, bmul(bint(k), a[0]))
-		}
-		return w
-	}
-	if n, acc := b[0].Int64(); b[0].IsInt() && acc == big.Exact && n >= 0 && n <= 64 {
-		w := bconst(bint(1), d)
-		for i := int64(0); i < n; i++ {
-			w = bsMul(w, a)
 		}
 		return w
 	}

@@ -1,11 +1,44 @@
 package expr
 
 import (
+	"flag"
 	"math"
 	"math/big"
 	"math/rand/v2"
+	"strconv"
 	"testing"
 )
+
+// boundScale multiplies the number of random samples of the math/big
+// reference checks (go test -run ErrorBound -bound.scale 20).
+var boundScale = flag.Int("bound.scale", 1, "multiply the random samples of the error-bound tests")
+
+// boundOrders are the orders at which the bounds are checked: the unrolled
+// low-order rules (taylorlow.go) and the general ones.
+var boundOrders = []int{1, 2, MaxOrder}
+
+// checkBound compares c[k] and e[k] with the reference coefficients and
+// returns how many were checked and the largest error/bound ratio.
+func checkBound(t *testing.T, what string, c, e []float64, ref bser) (checked int, worst float64) {
+	t.Helper()
+	for k := range c {
+		if math.IsInf(e[k], 1) || math.IsNaN(c[k]) {
+			continue
+		}
+		diff := new(big.Float).SetPrec(refPrec).Sub(bf(c[k]), ref[k])
+		df, _ := diff.Abs(diff).Float64()
+		if df > e[k]+refTol(ref[k]) {
+			rf, _ := ref[k].Float64()
+			t.Errorf("%s, order %d: c[%d] = %v, exact %v, error %.3g > bound %.3g",
+				what, len(c)-1, k, c[k], rf, df, e[k])
+		}
+		if e[k] > 0 && df > 0 {
+			worst = math.Max(worst, df/e[k])
+		}
+		checked++
+	}
+	return checked, worst
+}
 
 // boundCases exercise every instruction of the Taylor back end.
 var boundCases = []struct {
@@ -37,10 +70,11 @@ var boundCases = []struct {
 }
 
 // TestTaylorErrorBound checks e[k] ≥ |c[k] − exact| for random inputs, the
-// exact coefficients from a math/big evaluation at 400 bits (bigref_test.go).
+// exact coefficients from a math/big evaluation at 400 bits (bigref_test.go),
+// at orders 1, 2 (the unrolled rules) and MaxOrder.
 func TestTaylorErrorBound(t *testing.T) {
 	rng := rand.New(rand.NewPCG(7, 11))
-	const draws = 150
+	draws := 150 * *boundScale
 	for _, tc := range boundCases {
 		env := Env{State: "x", Params: []string{"a", "b", "c", "q"}, Defines: tc.defines}
 		p, err := Compile(tc.rate, env)
@@ -48,39 +82,41 @@ func TestTaylorErrorBound(t *testing.T) {
 			t.Fatalf("%s: %v", tc.rate, err)
 		}
 		m := p.NewMachine()
-		c, e := make([]float64, MaxOrder+1), make([]float64, MaxOrder+1)
-		checked, worst := 0, 0.0
+		checked, worst := 0, make([]float64, len(boundOrders))
 		for i := 0; i < draws; i++ {
 			x := tc.xlo + (tc.xhi-tc.xlo)*rng.Float64()
 			theta := []float64{0.1 + 1.9*rng.Float64(), 0.1 + 1.9*rng.Float64(), 0.1 + 1.9*rng.Float64(), 1 + 4*rng.Float64()}
-			m.Taylor(x, theta, c, e)
 			ref, err := refTaylor(p, x, theta, MaxOrder)
 			if err != nil {
 				continue
 			}
-			for k := range c {
-				if math.IsInf(e[k], 1) {
-					continue
-				}
-				diff := new(big.Float).SetPrec(refPrec).Sub(bf(c[k]), ref[k])
-				diff.Abs(diff)
-				df, _ := diff.Float64()
-				if df > e[k]+refTol(ref[k]) {
-					rf, _ := ref[k].Float64()
-					t.Errorf("%s at x=%v θ=%v: c[%d] = %v, exact %v, error %.3g > bound %.3g",
-						tc.rate, x, theta, k, c[k], rf, df, e[k])
-				}
-				if e[k] > 0 && df > 0 {
-					worst = math.Max(worst, df/e[k])
-				}
-				checked++
+			for o, d := range boundOrders {
+				c, e := make([]float64, d+1), make([]float64, d+1)
+				m.Taylor(x, theta, c, e)
+				what := tc.rate + " at x=" + fmtG(x) + " θ=" + fmtGs(theta)
+				n, w := checkBound(t, what, c, e, ref)
+				checked += n
+				worst[o] = math.Max(worst[o], w)
 			}
 		}
 		if checked < draws {
 			t.Errorf("%s: only %d coefficients checked", tc.rate, checked)
 		}
-		t.Logf("%-45s %5d coefficients, largest error/bound %.3g", tc.rate, checked, worst)
+		t.Logf("%-40s %5d coefficients, largest error/bound at orders %v: %.3g", tc.rate, checked, boundOrders, worst)
 	}
+}
+
+func fmtG(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+
+func fmtGs(xs []float64) string {
+	s := "["
+	for i, x := range xs {
+		if i > 0 {
+			s += " "
+		}
+		s += fmtG(x)
+	}
+	return s + "]"
 }
 
 // randomExpr builds a random rate-law source over x, a, b, q with every
@@ -140,8 +176,9 @@ func TestTaylorErrorBoundRandom(t *testing.T) {
 	if testing.Short() {
 		n = 60
 	}
-	c, e := make([]float64, MaxOrder+1), make([]float64, MaxOrder+1)
+	n *= *boundScale
 	checked := 0
+	worst := make([]float64, len(boundOrders))
 	for i := 0; i < n; i++ {
 		src := randomExpr(rng, 4)
 		p, err := Compile(src, env)
@@ -152,28 +189,23 @@ func TestTaylorErrorBoundRandom(t *testing.T) {
 		for j := 0; j < 4; j++ {
 			x := -2 + 4*rng.Float64()
 			theta := []float64{-1 + 3*rng.Float64(), 0.1 + 2*rng.Float64(), 0.5 + 3*rng.Float64()}
-			m.Taylor(x, theta, c, e)
 			ref, err := refTaylor(p, x, theta, MaxOrder)
 			if err != nil {
 				continue
 			}
-			for k := range c {
-				if math.IsInf(e[k], 1) || math.IsNaN(c[k]) {
-					continue
-				}
-				diff := new(big.Float).SetPrec(refPrec).Sub(bf(c[k]), ref[k])
-				df, _ := diff.Abs(diff).Float64()
-				if df > e[k]+refTol(ref[k]) {
-					t.Errorf("%s at x=%v θ=%v: c[%d] = %v, error %.3g > bound %.3g", src, x, theta, k, c[k], df, e[k])
-				}
-				checked++
+			for o, d := range boundOrders {
+				c, e := make([]float64, d+1), make([]float64, d+1)
+				m.Taylor(x, theta, c, e)
+				k, w := checkBound(t, src+" at x="+fmtG(x)+" θ="+fmtGs(theta), c, e, ref)
+				checked += k
+				worst[o] = math.Max(worst[o], w)
 			}
 		}
 	}
 	if checked < n {
 		t.Errorf("only %d coefficients checked", checked)
 	}
-	t.Logf("%d coefficients checked", checked)
+	t.Logf("%d coefficients checked; largest error/bound at orders %v: %.3g", checked, boundOrders, worst)
 }
 
 // refTol allows for the reference's own rounding (about 2^-400 relative per
@@ -214,6 +246,10 @@ func TestLibraryAccuracy(t *testing.T) {
 		{"cos", math.Cos, cos, func(x, v float64) float64 { return lib(v, 4) + trigReduce(x) }, -100, 100},
 		{"tan", math.Tan, func(x *big.Float) *big.Float { s, c := bsincos(x); return bquo(s, c) },
 			func(x, v float64) float64 { return lib(v, 4) + trigReduce(x)*(1+v*v) }, -100, 100},
+		{"sin large", math.Sin, sin, func(x, v float64) float64 { return lib(v, 4) + trigReduce(x) }, 1 << 29, 1e15},
+		{"cos large", math.Cos, cos, func(x, v float64) float64 { return lib(v, 4) + trigReduce(x) }, 1 << 29, 1e15},
+		{"tan large", math.Tan, func(x *big.Float) *big.Float { s, c := bsincos(x); return bquo(s, c) },
+			func(x, v float64) float64 { return lib(v, 4) + trigReduce(x)*(1+v*v) }, 1 << 29, 1e15},
 		{"atan", math.Atan, batan, func(x, v float64) float64 { return lib(v, 4) }, -50, 50},
 		{"sinh", math.Sinh, func(x *big.Float) *big.Float {
 			return bquo(bsub(bexp(x), bexp(bnew().Neg(x))), bint(2))
@@ -248,6 +284,19 @@ func TestLibraryAccuracy(t *testing.T) {
 			worst = math.Max(worst, df/b)
 		}
 		t.Logf("%-10s largest error/model %.3f", f.name, worst)
+	}
+	// Subnormal arguments: Go's amd64 Log does not renormalise them, so the
+	// model (logLib, powLib for non-integer exponents) must give +Inf there.
+	for _, x := range []float64{5e-324, 1e-310, 0x1p-1023} {
+		d := new(big.Float).SetPrec(refPrec).Sub(bf(math.Log(x)), blog(bf(x)))
+		df, _ := d.Abs(d).Float64()
+		if df > lib(math.Log(x), 3) && !math.IsInf(logLib(math.Log(x), x, 3), 1) {
+			t.Errorf("log(%v): error %.3g, model %.3g", x, df, logLib(math.Log(x), x, 3))
+		}
+		if !math.IsInf(powLib(x, 1.5, math.Pow(x, 1.5)), 1) || !math.IsInf(logLib(math.Log(x), x, 3), 1) {
+			t.Errorf("subnormal %v: model finite", x)
+		}
+		t.Logf("log(%v) = %v: error %.3g (model +Inf)", x, math.Log(x), df)
 	}
 	// Pow: powLib against exp(b log a).
 	worst := 0.0

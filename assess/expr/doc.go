@@ -49,6 +49,8 @@
 //     error of each coefficient. Rounding errors of + − × ÷ are computed
 //     exactly by error-free transformations; those of the library functions
 //     use the accuracy of Go's math package. c[0] equals Eval bit for bit.
+//     Orders 1 and 2 run unrolled rules, and the part of f that depends
+//     on θ alone is kept between calls with the same θ.
 //   - ParamGrad: ∂f/∂θ and ∂²f/∂x∂θ by forward-over-reverse algorithmic
 //     differentiation, cost independent of the number of parameters.
 //   - Diagnose: a checked re-evaluation of the syntax trees that names the

@@ -26,7 +26,7 @@ func (p *Program) NewMachine() *Machine {
 	m := &Machine{
 		p:    p,
 		regs: make([]float64, n),
-		ts:   taylorRegs{r: make([]series, n)},
+		ts:   taylorRegs{r: make([]series, n), theta: make([]float64, len(p.params))},
 		gv:   make([]float64, n),
 		gd:   make([]float64, n),
 		gb:   make([]float64, n),

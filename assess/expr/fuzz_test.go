@@ -8,7 +8,8 @@ import (
 
 // FuzzCompile: Compile never panics; a compile error is an *Error with an
 // offset inside the source; a compiled program evaluates without panics,
-// Taylor's c[0] equals Eval bit for bit (or both are NaN), ParamGrad
+// Taylor's c[0] equals Eval bit for bit (or both are NaN) at every order
+// path, ParamGrad
 // returns Eval's value, and Diagnose reports a fault exactly when Eval is
 // not finite. Seeds: f.Add below and testdata/fuzz/FuzzCompile.
 func FuzzCompile(f *testing.F) {
@@ -45,6 +46,18 @@ func FuzzCompile(f *testing.F) {
 		for k := range e {
 			if e[k] < 0 || math.IsNaN(e[k]) {
 				t.Fatalf("%q: bound e[%d] = %v", src, k, e[k])
+			}
+		}
+		for d := 1; d <= lowOrder; d++ { // the unrolled low orders
+			cl, el := c[:d+1], e[:d+1]
+			m.Taylor(x, theta, cl, el)
+			if !sameFloat(cl[0], v) {
+				t.Fatalf("%q at %v, order %d: Taylor c[0] = %v, Eval = %v", src, x, d, cl[0], v)
+			}
+			for k := range el {
+				if el[k] < 0 || math.IsNaN(el[k]) {
+					t.Fatalf("%q, order %d: bound e[%d] = %v", src, d, k, el[k])
+				}
 			}
 		}
 		df, dfx := make([]float64, 3), make([]float64, 3)

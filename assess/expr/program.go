@@ -24,6 +24,8 @@ type Program struct {
 	exprs  []source // the defines in order, then the rate (last)
 
 	code   []instr
+	pcode  []instr // the instructions of code that do not depend on the state, in order
+	xcode  []instr // those that do, in order (pcode then xcode computes what code does)
 	nreg   int
 	consts []constInit
 	out    int32  // register holding f
@@ -243,6 +245,17 @@ func lower(p *Program) {
 	p.uses = make([]bool, len(p.params))
 	for j := range p.params {
 		p.uses[j] = live[paramReg(j)]
+	}
+
+	// An instruction that does not depend on x reads only registers that do
+	// not, all written earlier by such instructions; so running those first
+	// and then the rest, each in program order, respects every dependence.
+	for _, in := range p.code {
+		if in.xdep {
+			p.xcode = append(p.xcode, in)
+		} else {
+			p.pcode = append(p.pcode, in)
+		}
 	}
 }
 

@@ -15,9 +15,16 @@ import "math"
 // division remainder a − b·fl(a/b) = fma(−fl(a/b), b, a), which is exactly
 // representable (Bohlender, Walter, Kornerup & Matula 1991, "Semantics for
 // exact floating point operations", ARITH 10), all exact barring underflow,
-// for which eta is added. Exact operations thus add nothing, so a coefficient that is
-// exactly zero keeps a zero bound. Bounds are themselves computed in
-// floating point; taylorSlack at the end covers their own rounding.
+// for which eta is added. Exact operations thus add nothing, so a
+// coefficient that is exactly zero keeps a zero bound. Bounds are
+// themselves computed in floating point; taylorSlack at the end covers
+// their own relative rounding, but not underflow: a product of a bound and
+// a value that falls below the least subnormal is lost, and a later
+// division by a tiny quantity cannot restore it. The bounds are therefore
+// guaranteed only while no such product underflows (x³·0.3 at x = −5e-160
+// already loses its bound); the tests check x down to 1e-30 with
+// parameters down to 1e-25, and x = 0. An underflowed power a^b with
+// a ≠ 0 gets +Inf bounds on its higher coefficients.
 
 const (
 	u         = unitRoundoff
@@ -129,15 +136,35 @@ func lib(v float64, rel float64) float64 {
 	return rel*u*math.Abs(v) + eta
 }
 
+// logLib is lib for v = Log(a) or Log10(a). Go's amd64 assembly Log does
+// not renormalise a subnormal argument (math.Log(5e-324) returns −709.09,
+// not −744.44; TestLibraryAccuracy), so there the bound is +Inf.
+func logLib(v, a float64, rel float64) float64 {
+	if a > 0 && a < minNormal {
+		return math.Inf(1)
+	}
+	return lib(v, rel)
+}
+
 // trigReduce is the absolute error of Go's Cody–Waite argument reduction
 // for sin, cos and tan below 2²⁹: π/4 is split as PI4A+PI4B+PI4C, whose
 // truncation (about 3e-31) and the rounding of y·PI4C make the reduced
 // argument wrong by about 1e-30·|x| (bound taken 12× larger). Near a zero of
 // sin or cos this dominates the relative error (sin(math.Pi) is off by a few
-// ulps).
-func trigReduce(x float64) float64 { return 0x1p-96 * math.Abs(x) }
+// ulps). From 2²⁹ up Go reduces by Payne–Hanek (math/trig_reduce.go): the
+// fraction of x·4/π is truncated to 53 bits and multiplied by a rounded
+// π/4, an absolute error of about 3u in the reduced argument, taken as 8u.
+func trigReduce(x float64) float64 {
+	if ax := math.Abs(x); ax < 1<<29 {
+		return 0x1p-96 * ax
+	}
+	return 8 * u
+}
 
-// logProp bounds |log a* − log a| for |a* − a| ≤ ea: −log1p(−ea/a).
+// logProp bounds |log a* − log a| for |a* − a| ≤ ea: −log1p(−r) with
+// r = ea/a, which is at most r/(1 − r) (compare the series Σ rⁿ/n and
+// Σ rⁿ); that cheaper form is used for r ≤ 1/16, where it exceeds
+// −log1p(−r) by less than r²/2 + r³.
 func logProp(a, ea float64) float64 {
 	if ea == 0 {
 		return 0
@@ -145,7 +172,21 @@ func logProp(a, ea float64) float64 {
 	if !(ea < a) {
 		return math.Inf(1)
 	}
-	return -math.Log1p(-ea/a) * (1 + 4*u)
+	r := ea / a
+	if r <= 0x1p-4 {
+		return r / (1 - r) * (1 + 4*u)
+	}
+	return -math.Log1p(-r) * (1 + 4*u)
+}
+
+// expProp bounds |exp a* − exp a| for |a* − a| ≤ ea given v = fl(exp a):
+// |exp a|·expm1(ea) with |exp a| ≤ |v|(1+4u) (lib), expm1 bounded without
+// a library call for small ea (expm1Up); an exact argument adds nothing.
+func expProp(v, ea float64) float64 {
+	if ea == 0 || v == 0 {
+		return 0
+	}
+	return math.Abs(v) * (1 + 4*u) * expm1Up(ea)
 }
 
 // powLib is the error of Go's math.Pow(a, b) = v. Reading its source: the
@@ -153,15 +194,43 @@ func logProp(a, ea float64) float64 {
 // the mantissa, which doubles the relative error at each squaring, so the
 // product carries at most about yi·u plus one rounding per product; the
 // fractional part is Exp(yf·Log(a)) with |yf| ≤ 1/2, good to about
-// (3 + 1.5|log a|)u; then one reciprocal. Hence (|b| + 2|log a| + 8)u,
-// enlarged by its own square for very large exponents.
+// (3 + 1.5|log a|)u except for a subnormal a (see logLib); then one
+// reciprocal. Hence (|b| + 2|log a| + 8)u, enlarged by its own square for
+// very large exponents.
 func powLib(a, b, v float64) float64 {
+	if a != 0 && math.Abs(a) < minNormal && b != math.Trunc(b) {
+		return math.Inf(1) // the fractional part goes through Log (logLib)
+	}
 	av := math.Abs(v)
 	if av == 0 || math.IsInf(v, 0) || math.IsNaN(v) {
 		return eta + u*av
 	}
-	rel := (math.Abs(b) + 2*math.Abs(math.Log(math.Abs(a))) + 8) * u
+	rel := (math.Abs(b) + 2*logAbsBound(a) + 8) * u
 	return rel*(1+rel)*av + eta
+}
+
+// logAbsBound returns an upper bound on |log |a|| from the binary exponent,
+// without a library call: for |a| = m·2ᵏ with 1 ≤ m < 2, log|a| = k·ln 2 +
+// log m and (m−1)/2 ≤ (m−1)/m ≤ log m ≤ min(m−1, ln 2). Zero, subnormal
+// and non-finite a use math.Log.
+func logAbsBound(a float64) float64 {
+	bits := math.Float64bits(a)
+	ex := int(bits>>52) & 0x7ff
+	if ex == 0 || ex == 0x7ff {
+		return math.Abs(math.Log(math.Abs(a)))
+	}
+	k := float64(ex - 1023)
+	m1 := math.Float64frombits(bits&(1<<52-1)|1023<<52) - 1 // m − 1, exact
+	var r float64
+	if k >= 0 {
+		r = k*math.Ln2 + math.Ln2
+		if m1 < math.Ln2 {
+			r = k*math.Ln2 + m1
+		}
+	} else {
+		r = -k*math.Ln2 - m1/2
+	}
+	return r * (1 + 0x1p-40) // margin for the rounding of r
 }
 
 // powProp bounds |a*^b* − a^b| for |a*−a| ≤ ea, |b*−b| ≤ eb, given v = a^b.
@@ -179,11 +248,23 @@ func powProp(a, ea, b, eb, v float64) float64 {
 		return math.Inf(1) // the exact exponent may be non-integer
 	}
 	aa := math.Abs(a)
-	r := ea / aa
-	if !(r < 1) {
+	if !(ea < aa) {
 		return math.Inf(1)
 	}
-	d := -math.Log1p(-r)
-	delta := math.Abs(b)*d + pm(eb, math.Abs(math.Log(aa))+d)
-	return pm(math.Abs(v), math.Expm1(delta)) * (1 + 4*u)
+	d := logProp(aa, ea) // ≥ −log1p(−ea/|a|); 0 when ea = 0
+	delta := math.Abs(b) * d
+	if eb != 0 {
+		delta += eb * (math.Abs(math.Log(aa)) + d)
+	}
+	return pm(math.Abs(v), expm1Up(delta)) * (1 + 4*u)
+}
+
+// expm1Up returns an upper bound on expm1(x) for x ≥ 0: x + x² for
+// x ≤ 1/2, since expm1(x) − x = x²/2·(1 + x/3 + …) ≤ x²/2·eˣ ≤ x² there,
+// and the library value otherwise.
+func expm1Up(x float64) float64 {
+	if x <= 0.5 {
+		return (x + x*x) * (1 + 2*u)
+	}
+	return math.Expm1(x) * (1 + 4*u)
 }

@@ -15,10 +15,28 @@ type series struct {
 }
 
 // taylorRegs is the register file of the Taylor back end: one series per
-// register plus scratch series for auxiliary recurrences.
+// register plus scratch series for auxiliary recurrences. The registers
+// that do not depend on x are a function of θ alone; they are kept from one
+// call to the next while θ is unchanged (bit for bit), since a caller
+// typically asks for many points x with the same θ.
 type taylorRegs struct {
-	r   []series
-	aux [4]series
+	r     []series
+	aux   [4]series
+	theta []float64 // θ for which the x-independent registers are current
+	ready bool      // theta is valid
+}
+
+// sameBits reports whether a and b hold the same float64 bit patterns.
+func sameBits(a, b []float64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
+			return false
+		}
+	}
+	return true
 }
 
 // Taylor fills c[k] = f⁽ᵏ⁾(x)/k! for k = 0..len(c)−1 (len(c) ≤ MaxOrder+1)
@@ -36,6 +54,12 @@ type taylorRegs struct {
 // valid for t → 0⁺ when the kink is crossed; the error bound then also
 // covers the other branch unless the choice is certain. A coefficient whose
 // value is NaN has bound +Inf.
+//
+// Orders 1 and 2, which root finders ask for most, run unrolled rules with
+// the same values and the same kind of bounds (taylorlow.go). The part of
+// f that does not depend on x is computed once per θ and kept in the
+// Machine while later calls pass the same θ (bit for bit); the results do
+// not depend on earlier calls.
 //
 // Taylor panics if len(c) > MaxOrder+1, if e is non-nil and shorter than c,
 // or if theta is shorter than NumParams(). It does not allocate.
@@ -55,13 +79,32 @@ func (m *Machine) Taylor(x float64, theta []float64, c, e []float64) {
 	if len(theta) < np {
 		panic(fmt.Sprintf("expr: len(theta) = %d, want %d parameters", len(theta), np))
 	}
-	r := m.ts.r
-	r[regState].v[0] = x
-	for j := 0; j < np; j++ {
-		r[paramReg(j)].v[0] = theta[j]
+	t := &m.ts
+	r := t.r
+	th := theta[:np]
+	if !t.ready || !sameBits(t.theta, th) {
+		// The x-independent part, at order 0, always by the same rules
+		// whatever the order asked, so that the result does not depend on
+		// earlier calls.
+		t.ready = false
+		for j, v := range th {
+			r[paramReg(j)].v[0] = v
+		}
+		for i := range p.pcode {
+			t.execLow(&p.pcode[i], 0)
+		}
+		copy(t.theta, th)
+		t.ready = true
 	}
-	for i := range p.code {
-		m.ts.exec(&p.code[i], d)
+	r[regState].v[0] = x
+	if d <= lowOrder {
+		for i := range p.xcode {
+			t.execLow(&p.xcode[i], d)
+		}
+	} else {
+		for i := range p.xcode {
+			t.exec(&p.xcode[i], d)
+		}
 	}
 	out := &r[p.out]
 	for k := 0; k <= d; k++ {
@@ -104,19 +147,19 @@ func (t *taylorRegs) exec(in *instr, d int) {
 		t.pow(w, a, b, d, in.bxdep)
 	case opExp:
 		w.v[0] = math.Exp(a.v[0])
-		w.e[0] = lib(w.v[0], 4) + pm(math.Abs(w.v[0])*(1+4*u), math.Expm1(a.e[0]))
+		w.e[0] = lib(w.v[0], 4) + expProp(w.v[0], a.e[0])
 		expRec(w, a, d)
 	case opLog:
 		w.v[0] = math.Log(a.v[0])
-		w.e[0] = lib(w.v[0], 3) + logProp(a.v[0], a.e[0])
+		w.e[0] = logLib(w.v[0], a.v[0], 3) + logProp(a.v[0], a.e[0])
 		logRec(w, a, d)
 	case opLog10:
 		w.v[0] = math.Log10(a.v[0])
-		w.e[0] = lib(w.v[0], 4) + logProp(a.v[0], a.e[0])/math.Ln10*(1+4*u)
+		w.e[0] = logLib(w.v[0], a.v[0], 4) + logProp(a.v[0], a.e[0])/math.Ln10*(1+4*u)
 		if d > 0 {
 			l := &t.aux[0]
 			l.v[0] = math.Log(a.v[0])
-			l.e[0] = lib(l.v[0], 3) + logProp(a.v[0], a.e[0])
+			l.e[0] = logLib(l.v[0], a.v[0], 3) + logProp(a.v[0], a.e[0])
 			logRec(l, a, d)
 			const inv = 1 / math.Ln10
 			for k := 1; k <= d; k++ {
@@ -441,10 +484,11 @@ func (t *taylorRegs) pow(w, a, b *series, d int, bxdep bool) {
 		if a0 > 0 {
 			l, pr := &t.aux[0], &t.aux[1]
 			l.v[0] = math.Log(a0)
-			l.e[0] = lib(l.v[0], 3) + logProp(a0, a.e[0])
+			l.e[0] = logLib(l.v[0], a0, 3) + logProp(a0, a.e[0])
 			logRec(l, a, d)
 			seriesMul(pr, b, l, d)
 			expRec(w, pr, d)
+			powUnderflow(w, d)
 			return
 		}
 	case a0 != 0:
@@ -463,6 +507,7 @@ func (t *taylorRegs) pow(w, a, b *series, d int, bxdep bool) {
 			den, eden := mulIntE(a0, a.e[0], k)
 			w.v[k], w.e[k] = divE(s, es, den, eden)
 		}
+		powUnderflow(w, d)
 		return
 	default: // a0 == 0, exponent constant in x
 		constBase := true
@@ -495,6 +540,19 @@ func (t *taylorRegs) pow(w, a, b *series, d int, bxdep bool) {
 	}
 	for k := 1; k <= d; k++ {
 		w.v[k], w.e[k] = math.NaN(), math.Inf(1)
+	}
+}
+
+// powUnderflow: when a^b with a ≠ 0 underflowed (|w₀| below the least
+// normal number, so w₀ has lost its relative accuracy), the higher
+// coefficients, w₀ times powers of a_k/a₀ that may be huge, get the bound
+// +Inf: the running bounds, computed in floating point, would underflow
+// with w₀'s.
+func powUnderflow(w *series, d int) {
+	if math.Abs(w.v[0]) < minNormal {
+		for k := 1; k <= d; k++ {
+			w.e[k] = math.Inf(1)
+		}
 	}
 }
 

@@ -422,6 +422,8 @@ func TestNoAllocs(t *testing.T) {
 	for name, f := range map[string]func(){
 		"Eval":      func() { m.Eval(0.7, theta) },
 		"Taylor":    func() { m.Taylor(0.7, theta, c, e) },
+		"Taylor2":   func() { m.Taylor(0.7, theta, c[:3], e[:3]) },
+		"Taylor2θ":  func() { theta[4] += 0.25; m.Taylor(0.7, theta, c[:3], e[:3]) },
 		"ParamGrad": func() { m.ParamGrad(0.7, theta, df, dfx) },
 		"Diagnose":  func() { m.Diagnose(0.7, theta) },
 	} {
