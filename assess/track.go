@@ -96,9 +96,13 @@ func (tr *tracker) follow(x0, slope0, scale float64) (x float64, idx int, ok boo
 	tu, tt := tangent(gx*W, gt, 1)
 	s := 1.0
 	for step := 0; step < maxArcSteps; step++ {
-		if t+s*tt >= 1 {
+		// Land when t = 1 is within reach: the arclength to it along the
+		// tangent, (1 − t)/tt, may exceed the step by a quarter (a gentle
+		// path reaches t = 1 in one step); the acceptance radius is that
+		// arclength's half, as for a step.
+		if land := (1 - t) / tt; land <= 1.25*s {
 			up := u + (1-t)*tu/tt
-			j, near := tr.rootNear(up*W, 0.5*s*W, gx)
+			j, near := tr.rootNear(up*W, 0.5*land*W, gx)
 			switch {
 			case near == 1 && j >= 0:
 				return tr.roots[j].X, j, true

@@ -13,6 +13,11 @@ type Machine struct {
 	p    *Program
 	regs []float64 // Eval registers
 
+	// Eval keeps the registers of the θ-only instructions (pcode) for the
+	// θ it last saw; evalTheta holds that θ and evalReady says it is valid.
+	evalTheta []float64
+	evalReady bool
+
 	ts taylorRegs // Taylor series registers
 
 	gv, gd  []float64 // ParamGrad: values and their x-derivatives
@@ -24,14 +29,15 @@ type Machine struct {
 func (p *Program) NewMachine() *Machine {
 	n := p.nreg
 	m := &Machine{
-		p:    p,
-		regs: make([]float64, n),
-		ts:   taylorRegs{r: make([]series, n), theta: make([]float64, len(p.params))},
-		gv:   make([]float64, n),
-		gd:   make([]float64, n),
-		gb:   make([]float64, n),
-		gbd:  make([]float64, n),
-		dg:   newDiagState(len(p.exprs)),
+		p:         p,
+		regs:      make([]float64, n),
+		evalTheta: make([]float64, len(p.params)),
+		ts:        taylorRegs{r: make([]series, n), theta: make([]float64, len(p.params))},
+		gv:        make([]float64, n),
+		gd:        make([]float64, n),
+		gb:        make([]float64, n),
+		gbd:       make([]float64, n),
+		dg:        newDiagState(len(p.exprs)),
 	}
 	for _, c := range p.consts {
 		m.regs[c.reg] = c.val
@@ -59,10 +65,29 @@ func (m *Machine) load(r []float64, x float64, theta []float64) {
 // Eval returns f(x; θ). theta must hold NumParams() values. NaN and ±Inf
 // propagate by the IEEE 754 rules; Diagnose explains a non-finite result.
 // Eval does not allocate.
+//
+// The instructions that do not depend on x (m^q in a Hill term, say) run
+// once per θ: while later calls pass the same θ bit for bit, only the
+// x-dependent instructions run. Each instruction computes exactly what it
+// would in one pass over the whole program, so the value does not depend
+// on earlier calls.
 func (m *Machine) Eval(x float64, theta []float64) float64 {
-	m.load(m.regs, x, theta)
-	run(m.p.code, m.regs)
-	return m.regs[m.p.out]
+	p := m.p
+	np := len(p.params)
+	if len(theta) < np {
+		panic(fmt.Sprintf("expr: len(theta) = %d, want %d parameters", len(theta), np))
+	}
+	th := theta[:np]
+	if !m.evalReady || !sameBits(m.evalTheta, th) {
+		m.evalReady = false
+		m.load(m.regs, x, theta)
+		run(p.pcode, m.regs)
+		copy(m.evalTheta, th)
+		m.evalReady = true
+	}
+	m.regs[regState] = x
+	run(p.xcode, m.regs)
+	return m.regs[p.out]
 }
 
 // run executes code on the register file r. It is the single definition of

@@ -3,8 +3,6 @@ package steady
 import (
 	"math"
 	"slices"
-
-	"gonum.org/v1/gonum/integrate/quad"
 )
 
 // binom[j][k] = C(j, k) for j, k < MaxTaylor.
@@ -481,7 +479,7 @@ func (fz *Finder) segIntegral(k int) float64 {
 		sg.integral = 0
 		return 0
 	}
-	G := quad.Fixed(fz.integrand, L, R, len(fz.rule.x), &fz.rule, 0)
+	G := fz.rule.integrate(fz.integrand, L, R)
 	absTol := fz.opt.QuadRelTol*math.Abs(G) + 1e-15*(R-L)*fz.fscale
 	if H, ok := fz.hermiteIntegral(k); ok && finite(G) &&
 		math.Abs(G-H) <= 1e-4*(math.Abs(G)+math.Abs(H))+1e-10*(R-L)*fz.fscale {
@@ -529,9 +527,8 @@ func hermitePanel(a, b float64, ca, cb *[3]float64) float64 {
 // with the panel (a global tolerance QuadRelTol·|∫| shared out).
 func (fz *Finder) adapt(a, b, whole, absTol float64, depth int) float64 {
 	m := 0.5 * (a + b)
-	n := len(fz.rule.x)
-	l := quad.Fixed(fz.integrand, a, m, n, &fz.rule, 0)
-	r := quad.Fixed(fz.integrand, m, b, n, &fz.rule, 0)
+	l := fz.rule.integrate(fz.integrand, a, m)
+	r := fz.rule.integrate(fz.integrand, m, b)
 	s := l + r
 	if math.Abs(s-whole) <= absTol || !finite(s) {
 		return s

@@ -67,7 +67,7 @@
 // Figures. The basin of an equilibrium is read off the phase line: each
 // open interval between neighbouring equilibria flows up where f > 0 and
 // down where f < 0. The potential barrier V(edge) − V(x*), V = −∫f dx, is
-// integrated with gonum's integrate/quad (Gauss–Legendre, quad.Fixed),
+// integrated by Gauss–Legendre sums with gonum's integrate/quad nodes,
 // checked against the quintic Hermite integral of the scan data and split
 // adaptively when the two disagree. FromState follows the flow from a start
 // and integrates the transit time ∫dx/f by quadrature after the
