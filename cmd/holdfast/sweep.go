@@ -2,18 +2,139 @@ package main
 
 import (
 	"errors"
+	"fmt"
 
 	"github.com/spf13/cobra"
+
+	"holdfast/assess/tipping"
+	"holdfast/report"
+	"holdfast/sample"
 )
 
-// newSweepCmd is a placeholder until the tipping-point issue lands.
 func newSweepCmd() *cobra.Command {
-	return &cobra.Command{
-		Use:    "sweep SCENARIO",
-		Short:  "Tipping points along a driver parameter (not yet available)",
-		Hidden: true,
+	var (
+		sets                        []string
+		driver, track, format, plan string
+		out                         string
+		from, to, risk              float64
+		draws, workers, steps       int
+		seed                        uint64
+		quiet                       bool
+	)
+	c := &cobra.Command{
+		Use:   "sweep SCENARIO --driver NAME --from A --to B --track LABEL",
+		Short: "Tipping points along a driver: critical values, safe limit, hysteresis, curves",
+		Long: `sweep moves one parameter, the driver, from A to B and asks where the
+tracked equilibrium (a label E1, E2, … of the equilibria at nominal values)
+is lost. For every draw of the other parameters it follows the tracked
+equilibrium along the driver by pseudo-arclength continuation from A and
+records the first driver value at which it meets a fold and vanishes (or
+exchanges stability with a crossing branch, or leaves the state's domain),
+or "no tipping in range". From these critical values it reports their
+quantiles along the sweep, the safe limit at risk α (the α-quantile, with a
+distribution-free interval from order statistics), and for each fold of an
+attracting state the return fold where the new state vanishes in turn:
+the hysteresis window, and whether the shift can be undone by reversing
+the driver within its allowed values.
+
+With --steps M it also runs the Monte Carlo engine at M driver values from
+A to B on the same draws, giving the probability that the tracked
+equilibrium exists and attracts, and of each regime, at each value.
+
+The driver may be swept up (A < B) or down (A > B). An uncertain driver
+may take the values of its distribution's support; a fixed one (or one
+fixed with --set) any finite value. The sweep replaces the driver in every
+draw.`,
+		Example: `  holdfast sweep demo:lake --driver L --from 0.05 --to 0.4 --track E1
+  holdfast sweep demo:lake --driver L --from 0.05 --to 0.4 --track E1 --risk 0.01 --steps 21 --format json
+  holdfast sweep demo:reactor --driver a --from 0.25 --to 0.08 --track E1 --draws 20000`,
+		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			return failed(errors.New("sweep is not available yet"))
+			if err := checkFormat(format, "table", "json"); err != nil {
+				return err
+			}
+			kind, err := sample.ParsePlan(plan)
+			if err != nil {
+				return badInput(fmt.Errorf("--plan: %w", err))
+			}
+			if workers < 0 {
+				return badInput(fmt.Errorf("--workers must be 0 (all cores) or more, got %d", workers))
+			}
+			m, err := loadModel(args[0], sets)
+			if err != nil {
+				return err
+			}
+			var outFile *report.Staged
+			if out != "" {
+				if outFile, err = report.Stage(out, m.Scenario.File); err != nil {
+					return badInput(err)
+				}
+				defer outFile.Abort()
+			}
+			opt := tipping.Options{
+				Driver: driver, From: from, To: to, Track: track, Steps: steps, Risk: risk,
+				Draws: draws, Seed: seed, Plan: kind, Workers: workers,
+			}
+			bar := progress(cmd.ErrOrStderr(), quiet, draws*max(steps, 1))
+			if bar != nil {
+				opt.Progress = func(done, planned int) {
+					bar.ChangeMax(planned)
+					bar.Set(done)
+				}
+			}
+			res, err := tipping.Run(cmd.Context(), m, opt)
+			if bar != nil {
+				bar.Finish()
+				bar.Clear()
+			}
+			var oe *tipping.OptionError
+			if errors.As(err, &oe) {
+				return badInput(fmt.Errorf("--%s: %s", oe.Option, oe.Msg))
+			}
+			if err != nil {
+				return failed(err)
+			}
+			s := m.Scenario
+			doc := report.NewSweepJSON(version, s.File, s.Title, res)
+			if outFile != nil {
+				if err := report.WriteJSON(outFile, doc); err != nil {
+					return failed(err)
+				}
+				if err := outFile.Commit(); err != nil {
+					return failed(err)
+				}
+			}
+			w := cmd.OutOrStdout()
+			if format == "json" {
+				return failed(report.WriteJSON(w, doc))
+			}
+			if quiet && out != "" {
+				return nil
+			}
+			driverUnit := ""
+			if j := s.ParamIndex(driver); j >= 0 {
+				driverUnit = s.Params[j].Unit
+			}
+			return failed(report.SweepTable(w, s.Title, s.State.Unit, driverUnit, res))
 		},
 	}
+	f := c.Flags()
+	f.StringVar(&driver, "driver", "", "the parameter to sweep (required)")
+	f.Float64Var(&from, "from", 0, "driver value where the sweep starts (required)")
+	f.Float64Var(&to, "to", 0, "driver value where the sweep ends (required)")
+	f.StringVar(&track, "track", "", "label of the equilibrium at nominal values to follow, e.g. E1 (required)")
+	f.IntVar(&steps, "steps", 11, "driver values for the probability curves, from --from to --to (0: no curves)")
+	f.Float64Var(&risk, "risk", 0.05, "α in (0, 1): the safe limit keeps the probability of having lost the tracked equilibrium at most α")
+	f.StringArrayVar(&sets, "set", nil, "fix a parameter at a value, as name=value (repeatable)")
+	f.IntVar(&draws, "draws", 10000, "number of parameter draws")
+	f.Uint64Var(&seed, "seed", 1, "random seed; the same seed gives the same result")
+	f.StringVar(&plan, "plan", "lhs", "sampling plan: random, lhs (Latin hypercube) or qmc (scrambled Sobol')")
+	f.IntVar(&workers, "workers", 0, "worker goroutines (0: all cores); results do not depend on it")
+	f.StringVar(&format, "format", "table", "output format: table or json")
+	f.StringVar(&out, "out", "", "write the JSON result to this file")
+	f.BoolVar(&quiet, "quiet", false, "no progress bar; with --out, no table either")
+	for _, name := range []string{"driver", "from", "to", "track"} {
+		_ = c.MarkFlagRequired(name)
+	}
+	return c
 }

@@ -1,0 +1,333 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"strings"
+
+	"holdfast/assess/tipping"
+)
+
+// SweepJSON is the JSON form of a driver sweep.
+type SweepJSON struct {
+	Tool        string            `json:"tool"`
+	Version     string            `json:"version"`
+	Scenario    string            `json:"scenario"`
+	Title       string            `json:"title"`
+	Driver      string            `json:"driver"`
+	From        float64           `json:"from"`
+	To          float64           `json:"to"`
+	Allowed     [2]*float64       `json:"allowed"`
+	Track       string            `json:"track"`
+	TrackX      float64           `json:"track_nominal_x"`
+	TrackClass  string            `json:"track_nominal_class"`
+	Draws       int               `json:"draws"`
+	FailedDraws int64             `json:"failed_draws"`
+	Seed        uint64            `json:"seed"`
+	Plan        string            `json:"plan"`
+	Critical    CriticalJSON      `json:"critical"`
+	Limit       LimitJSON         `json:"limit"`
+	Hysteresis  HysteresisJSON    `json:"hysteresis"`
+	Curve       []CurvePointJSON  `json:"curve"`
+	Failures    []CountedJSON     `json:"failures"`
+	Warnings    []string          `json:"warnings"`
+	Caution     string            `json:"caution"`
+	Notes       map[string]string `json:"notes"`
+}
+
+// SweepQuantilesJSON holds driver values at the 5, 25, 50, 75 and 95%
+// levels along the sweep; null where the value lies outside the range
+// (see the matching where field).
+type SweepQuantilesJSON struct {
+	Q5  *float64 `json:"5"`
+	Q25 *float64 `json:"25"`
+	Q50 *float64 `json:"50"`
+	Q75 *float64 `json:"75"`
+	Q95 *float64 `json:"95"`
+}
+
+// SweepWhereJSON tells, per level, where the value lies: "in range", "at
+// start" (the tracked equilibrium is already lost at from), "beyond end"
+// (no tipping up to to) or "unbounded" (too few draws).
+type SweepWhereJSON struct {
+	Q5  string `json:"5"`
+	Q25 string `json:"25"`
+	Q50 string `json:"50"`
+	Q75 string `json:"75"`
+	Q95 string `json:"95"`
+}
+
+// CriticalJSON summarises the per-draw critical values.
+type CriticalJSON struct {
+	Kind                  string             `json:"kind"`
+	N                     int64              `json:"n"`
+	Counts                map[string]int64   `json:"counts"`
+	Quantiles             SweepQuantilesJSON `json:"quantiles"`
+	Where                 SweepWhereJSON     `json:"quantiles_where"`
+	ShareWithoutTipping   float64            `json:"share_without_tipping"`
+	ShareWithoutTippingCI [2]float64         `json:"share_without_tipping_ci"`
+	ShareLostAtStart      float64            `json:"share_lost_at_start"`
+	ShareLostAtStartCI    [2]float64         `json:"share_lost_at_start_ci"`
+}
+
+// LimitJSON is the safe limit at a risk with its order-statistic interval.
+type LimitJSON struct {
+	Risk     float64     `json:"risk"`
+	Value    *float64    `json:"value"`
+	CI       [2]*float64 `json:"ci"`
+	Where    string      `json:"where"`
+	CIWhere  [2]string   `json:"ci_where"`
+	Coverage float64     `json:"coverage"`
+	Ranks    [3]int      `json:"ranks"`
+}
+
+// HysteresisJSON summarises the folds of an attracting tracked
+// equilibrium.
+type HysteresisJSON struct {
+	Draws        int64         `json:"draws"`
+	Reversible   ProbJSON      `json:"reversible"`
+	Irreversible ProbJSON      `json:"irreversible"`
+	Escapes      ProbJSON      `json:"escapes"`
+	Unresolved   ProbJSON      `json:"unresolved"`
+	ReturnFold   QuantilesJSON `json:"return_fold_quantiles"`
+	Width        QuantilesJSON `json:"width_quantiles"`
+}
+
+// CurvePointJSON is the engine's verdict at one driver value.
+type CurvePointJSON struct {
+	Value         float64      `json:"value"`
+	PExists       float64      `json:"p_exists"`
+	PExistsCI     [2]float64   `json:"p_exists_ci"`
+	PAttracting   float64      `json:"p_attracting"`
+	PAttractingCI [2]float64   `json:"p_attracting_ci"`
+	Regimes       []RegimeJSON `json:"regimes"`
+	FailedDraws   int64        `json:"failed_draws"`
+	PathDisagree  int64        `json:"path_disagreements"`
+}
+
+func valueJSON(v tipping.Value) *float64 {
+	if v.Where != tipping.InRange {
+		return nil
+	}
+	return num(v.D)
+}
+
+// NewSweepJSON converts a sweep result for JSON output.
+func NewSweepJSON(version, scenario, title string, r *tipping.Result) *SweepJSON {
+	c := &r.Critical
+	q := c.Quantiles
+	out := &SweepJSON{
+		Tool: "holdfast", Version: version, Scenario: scenario, Title: title,
+		Driver: r.Driver, From: r.From, To: r.To,
+		Allowed:     [2]*float64{num(r.Allowed[0]), num(r.Allowed[1])},
+		Track:       r.Track,
+		TrackX:      r.Nominal.X,
+		TrackClass:  className(r.Nominal.Class.String(), r.Nominal.AttractsFrom.String()),
+		Draws:       r.Draws,
+		FailedDraws: c.Count[tipping.Failed],
+		Seed:        r.Seed,
+		Plan:        r.Plan.String(),
+		Critical: CriticalJSON{
+			Kind:   c.Kind(),
+			N:      c.N,
+			Counts: map[string]int64{},
+			Quantiles: SweepQuantilesJSON{
+				Q5: valueJSON(q[0]), Q25: valueJSON(q[1]), Q50: valueJSON(q[2]), Q75: valueJSON(q[3]), Q95: valueJSON(q[4]),
+			},
+			Where: SweepWhereJSON{
+				Q5: q[0].Where.String(), Q25: q[1].Where.String(), Q50: q[2].Where.String(), Q75: q[3].Where.String(), Q95: q[4].Where.String(),
+			},
+		},
+		Limit: LimitJSON{
+			Risk:     r.Limit.Risk,
+			Value:    valueJSON(r.Limit.Value),
+			CI:       [2]*float64{valueJSON(r.Limit.CI[0]), valueJSON(r.Limit.CI[1])},
+			Where:    r.Limit.Value.Where.String(),
+			CIWhere:  [2]string{r.Limit.CI[0].Where.String(), r.Limit.CI[1].Where.String()},
+			Coverage: zeroNaN(r.Limit.Coverage),
+			Ranks:    r.Limit.Ranks,
+		},
+		Curve:    []CurvePointJSON{},
+		Failures: countedJSON(r.Failed),
+		Warnings: append([]string{}, r.Warnings...),
+		Caution:  Caution,
+		Notes: map[string]string{
+			"levels":     "quantile levels run along the sweep: the 5% value is where 5% of the draws have lost the tracked equilibrium",
+			"limit":      "the risk-quantile of the critical values (order statistic of rank ceil(N*risk)); ci is the distribution-free order-statistic interval",
+			"curve":      "engine verdicts on the same draws at each driver value; path_disagreements counts draws where the engine's identity (from nominal values) differs from the sweep's (along the driver)",
+			"hysteresis": "irreversible: the return fold lies outside the driver's allowed values, so reversing the driver alone cannot undo the shift",
+		},
+	}
+	for k := tipping.None; k <= tipping.Failed; k++ {
+		out.Critical.Counts[k.String()] = c.Count[k]
+	}
+	w, a := probJSON(c.WithoutTipping), probJSON(c.LostAtStart)
+	out.Critical.ShareWithoutTipping, out.Critical.ShareWithoutTippingCI = w.P, w.CI
+	out.Critical.ShareLostAtStart, out.Critical.ShareLostAtStartCI = a.P, a.CI
+	h := &r.Hysteresis
+	out.Hysteresis = HysteresisJSON{
+		Draws:        h.N,
+		Reversible:   probJSON(h.Reversible),
+		Irreversible: probJSON(h.Irreversible),
+		Escapes:      probJSON(h.Escapes),
+		Unresolved:   probJSON(h.Unresolved),
+		ReturnFold:   quantilesJSON(h.Return),
+		Width:        quantilesJSON(h.Width),
+	}
+	for _, p := range r.Curve {
+		e, at := probJSON(p.Exists), probJSON(p.Attracting)
+		cp := CurvePointJSON{
+			Value: p.Value, PExists: e.P, PExistsCI: e.CI, PAttracting: at.P, PAttractingCI: at.CI,
+			Regimes: []RegimeJSON{}, FailedDraws: p.Failed, PathDisagree: p.Disagree,
+		}
+		for _, g := range p.Regimes {
+			pj := probJSON(g.P)
+			cp.Regimes = append(cp.Regimes, RegimeJSON{Pattern: g.Pattern, P: pj.P, CI: pj.CI, Count: pj.Count})
+		}
+		out.Curve = append(out.Curve, cp)
+	}
+	return out
+}
+
+func className(class, side string) string {
+	if side != "" {
+		return class + "-" + side
+	}
+	return class
+}
+
+// sweepValue formats a driver value read off the critical values.
+func sweepValue(v tipping.Value, r *tipping.Result) string {
+	switch v.Where {
+	case tipping.InRange:
+		return g(v.D)
+	case tipping.AtStart:
+		return "at start (" + g(r.From) + ")"
+	case tipping.BeyondEnd:
+		return "beyond " + g(r.To)
+	}
+	return "–"
+}
+
+// SweepTable writes the terminal summary of a driver sweep. stateUnit and
+// driverUnit may be empty.
+func SweepTable(w io.Writer, title, stateUnit, driverUnit string, r *tipping.Result) error {
+	if title != "" {
+		fmt.Fprintf(w, "%s\n", title)
+	}
+	c := &r.Critical
+	du := unitSuffix(driverUnit)
+	nomClass := r.Nominal.Class.String()
+	if s := r.Nominal.AttractsFrom.String(); s != "" {
+		nomClass += " from " + s
+	}
+	fmt.Fprintf(w, "Sweep of %s from %s to %s%s, tracking %s (%s at nominal values, x* = %s%s).\n",
+		r.Driver, g(r.From), g(r.To), du, r.Track, nomClass, g(r.Nominal.X), unitSuffix(stateUnit))
+	fmt.Fprintf(w, "%d draws (plan %s, seed %d); %d assessed, %d failed. Intervals are 95%%.\n\n",
+		r.Draws, r.Plan, r.Seed, c.N, c.Count[tipping.Failed])
+
+	fmt.Fprintf(w, "Critical value of %s (first loss of %s along the sweep):\n", r.Driver, r.Track)
+	var kinds []string
+	for _, k := range []tipping.Kind{tipping.Fold, tipping.Exchange, tipping.Boundary} {
+		if n := c.Count[k]; n > 0 {
+			kinds = append(kinds, fmt.Sprintf("%s in %d draws", kindPhrase(k), n))
+		}
+	}
+	if len(kinds) == 0 {
+		kinds = []string{"no draw tips in range"}
+	}
+	fmt.Fprintf(w, "  %s\n", strings.Join(kinds, "; "))
+	fmt.Fprintf(w, "  no tipping in range: %s; already lost at %s: %s\n", pct(c.WithoutTipping), g(r.From), pct(c.LostAtStart))
+	t := newTable(w)
+	t.Header("level along the sweep", "5%", "25%", "50%", "75%", "95%")
+	row := []string{r.Driver + du}
+	for _, v := range c.Quantiles {
+		row = append(row, sweepValue(v, r))
+	}
+	if err := t.Append(row); err != nil {
+		return err
+	}
+	if err := t.Render(); err != nil {
+		return err
+	}
+
+	l := &r.Limit
+	fmt.Fprintf(w, "\nSafe limit at risk %s: %s = %s%s (95%% interval %s to %s; order statistics, coverage %.3f)\n",
+		pc(l.Risk)+"%", r.Driver, sweepValue(l.Value, r), du, sweepValue(l.CI[0], r), sweepValue(l.CI[1], r), l.Coverage)
+	fmt.Fprintf(w, "  up to this value the estimated probability of having lost %s is at most %s%%.\n", r.Track, pc(l.Risk))
+
+	if h := &r.Hysteresis; h.N > 0 {
+		fmt.Fprintf(w, "\nHysteresis (%d draws in which an attracting %s folds):\n", h.N, r.Track)
+		t := newTable(w)
+		t.Header("after the fold", "share of those draws")
+		rows := [][]string{
+			{"return fold inside the allowed values (reversible)", pct(h.Reversible)},
+			{"return fold outside the allowed values (irreversible)", pct(h.Irreversible)},
+			{"the state leaves the domain", pct(h.Escapes)},
+			{"unresolved", pct(h.Unresolved)},
+		}
+		for _, row := range rows {
+			if err := t.Append(row); err != nil {
+				return err
+			}
+		}
+		if err := t.Render(); err != nil {
+			return err
+		}
+		fmt.Fprintf(w, "  allowed values of %s: [%s, %s]\n", r.Driver, g(r.Allowed[0]), g(r.Allowed[1]))
+		if h.Return.N > 0 {
+			fmt.Fprintf(w, "  return fold %s 5%%…95%%: %s … %s%s; window width median %s\n",
+				r.Driver, g(h.Return.Q[0]), g(h.Return.Q[4]), du, g(h.Width.Q[2]))
+		}
+	}
+
+	if len(r.Curve) > 0 {
+		fmt.Fprintf(w, "\nProbability curves (the engine on the same draws at each value of %s):\n", r.Driver)
+		t := newTable(w)
+		t.Header(r.Driver+du, r.Track+" exists", r.Track+" attracting", "most common regime")
+		for _, p := range r.Curve {
+			regime := "–"
+			if len(p.Regimes) > 0 {
+				pattern := strings.Join(p.Regimes[0].Pattern, " / ")
+				if pattern == "" {
+					pattern = "(no equilibrium)"
+				}
+				regime = pattern + " " + pc(p.Regimes[0].P.P) + "%"
+			}
+			if err := t.Append([]string{g(p.Value), pct(p.Exists), pct(p.Attracting), regime}); err != nil {
+				return err
+			}
+		}
+		if err := t.Render(); err != nil {
+			return err
+		}
+		var most int64
+		for _, p := range r.Curve {
+			most = max(most, p.Disagree)
+		}
+		if most > 0 {
+			fmt.Fprintf(w, "  The engine follows %s from nominal values straight to each draw, the sweep along %s; near a cusp\n  the two paths can give different verdicts (in at most %d of %d draws at one value).\n",
+				r.Track, r.Driver, most, r.Draws)
+		}
+	}
+	for _, cnt := range r.Failed {
+		fmt.Fprintf(w, "Failed draws: %d × %s (first: %s)\n", cnt.Draws, cnt.Reason, ints(cnt.First))
+	}
+	for _, msg := range r.Warnings {
+		fmt.Fprintf(w, "Warning: %s\n", msg)
+	}
+	fmt.Fprintf(w, "\n%s\n", Caution)
+	return nil
+}
+
+func kindPhrase(k tipping.Kind) string {
+	switch k {
+	case tipping.Fold:
+		return "meets a fold and vanishes"
+	case tipping.Exchange:
+		return "exchanges stability with a crossing branch"
+	case tipping.Boundary:
+		return "leaves the state's domain"
+	}
+	return k.String()
+}
