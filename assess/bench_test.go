@@ -5,6 +5,7 @@ import (
 	"math"
 	"sync"
 	"syscall"
+	"time"
 	"testing"
 
 	"holdfast/sample"
@@ -184,4 +185,32 @@ func BenchmarkMillionDrawsMemory(b *testing.B) {
 		b.ReportMetric(float64(ru.Maxrss)/1024, "peak-RSS-MB") // Linux reports KiB
 	}
 	b.ReportMetric(float64(1_000_000*b.N)/b.Elapsed().Seconds(), "draws/s")
+}
+
+// BenchmarkLakeEngineVsNative times the engine and the native reference
+// alternately on the same 20,000 lake draws (two workers each) and reports
+// the ratio of their draws per second, so that load on a shared machine
+// affects both alike. Target: ratio ≥ 1.
+func BenchmarkLakeEngineVsNative(b *testing.B) {
+	m := lakeModel(b)
+	d, err := m.Design(sample.Random, benchDraws, 1)
+	if err != nil {
+		b.Fatal(err)
+	}
+	var engine, native time.Duration
+	for b.Loop() {
+		t0 := time.Now()
+		if _, err := Run(context.Background(), m, Options{Draws: benchDraws, Seed: 1, Plan: sample.Random, Workers: 2}); err != nil {
+			b.Fatal(err)
+		}
+		t1 := time.Now()
+		nativeLake(d, benchDraws, 2)
+		t2 := time.Now()
+		engine += t1.Sub(t0)
+		native += t2.Sub(t1)
+	}
+	n := float64(benchDraws * b.N)
+	b.ReportMetric(n/engine.Seconds(), "engine-draws/s")
+	b.ReportMetric(n/native.Seconds(), "native-draws/s")
+	b.ReportMetric(native.Seconds()/engine.Seconds(), "speed-ratio")
 }

@@ -340,7 +340,7 @@ func newWorker(m *Model, points func(int, []float64), nominal *Snapshot) (*worke
 	fopt := steady.DefaultOptions()
 	// Barriers enter 0.1%-accurate quantile sketches, and only escape
 	// barriers over thresholds are reported.
-	fopt.QuadRelTol = 1e-6
+	fopt.QuadRelTol = 1e-5
 	fopt.ThresholdBarriersOnly = true
 	finder, err := steady.NewFinder(fopt)
 	if err != nil {

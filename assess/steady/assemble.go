@@ -482,12 +482,20 @@ func (fz *Finder) segIntegral(k int) float64 {
 	G := fz.rule.integrate(fz.integrand, L, R)
 	absTol := fz.opt.QuadRelTol*math.Abs(G) + 1e-15*(R-L)*fz.fscale
 	if H, ok := fz.hermiteIntegral(k); ok && finite(G) &&
-		math.Abs(G-H) <= 1e-4*(math.Abs(G)+math.Abs(H))+1e-10*(R-L)*fz.fscale {
+		math.Abs(G-H) <= fz.checkTol()*(math.Abs(G)+math.Abs(H))+1e-10*(R-L)*fz.fscale {
 		sg.integral = G
 		return G
 	}
 	sg.integral = fz.adapt(L, R, G, absTol, 0)
 	return sg.integral
+}
+
+// checkTol is the relative agreement between the Gauss–Legendre and the
+// Hermite integral of a segment under which the former is accepted without
+// refinement: 1e-4, or 100·QuadRelTol when that is looser (a caller that
+// asks for barriers to 1e-5 accepts two rules agreeing to 1e-3).
+func (fz *Finder) checkTol() float64 {
+	return math.Max(1e-4, 100*fz.opt.QuadRelTol)
 }
 
 // hermiteIntegral is the composite two-point Hermite rule
