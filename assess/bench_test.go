@@ -5,8 +5,8 @@ import (
 	"math"
 	"sync"
 	"syscall"
-	"time"
 	"testing"
+	"time"
 
 	"holdfast/sample"
 	"holdfast/scenarios"
