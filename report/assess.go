@@ -9,19 +9,25 @@ import (
 	"strings"
 
 	"holdfast/assess"
+	"holdfast/assess/gate"
 	"holdfast/assess/sensitivity"
 )
 
-// AssessJSON is the JSON form of a Monte Carlo result.
+// AssessJSON is the JSON form of a Monte Carlo result. With the envelope,
+// the settings, the scenario's description and text (SetRun) and the plot
+// summaries (Figures) it is a result file that holdfast report renders.
 type AssessJSON struct {
-	Tool        string          `json:"tool"`
-	Version     string          `json:"version"`
-	Scenario    string          `json:"scenario"`
-	Title       string          `json:"title"`
-	Draws       int             `json:"draws"`
-	FailedDraws int64           `json:"failed_draws"`
-	Seed        uint64          `json:"seed"`
-	Plan        string          `json:"plan"`
+	Envelope
+	Draws       int    `json:"draws"`
+	Assessed    int64  `json:"assessed_draws"`
+	FailedDraws int64  `json:"failed_draws"`
+	Seed        uint64 `json:"seed"`
+	Plan        string `json:"plan"`
+	// Settings, Model and Nominal describe the run for a report's inputs,
+	// method and nominal sections.
+	Settings    *SettingsJSON   `json:"settings"`
+	Model       *ModelJSON      `json:"model"`
+	Nominal     *NominalJSON    `json:"nominal"`
 	Equilibria  []TrackedJSON   `json:"equilibria"`
 	Regimes     []RegimeJSON    `json:"regimes"`
 	Untracked   ProbJSON        `json:"new_equilibria"`
@@ -32,7 +38,20 @@ type AssessJSON struct {
 	Warnings    []string        `json:"warnings"`
 	// Sensitivity holds the screening measures (see NewScreeningJSON).
 	Sensitivity *ScreeningJSON `json:"sensitivity,omitempty"`
-	Caution     string         `json:"caution"`
+	// Figures holds the summaries the report's plots are drawn from.
+	Figures *FiguresJSON `json:"figures"`
+	// Requirements holds the --require gates judged on this result.
+	Requirements []RequirementJSON `json:"requirements,omitempty"`
+	// ScenarioText is the scenario file's full text (its SHA-256 is in
+	// the envelope).
+	ScenarioText string `json:"scenario_text"`
+	Caution      string `json:"caution"`
+}
+
+// SetRun records the command line and the scenario (hash, description
+// and full text).
+func (d *AssessJSON) SetRun(run RunInfo) {
+	d.Model, d.ScenarioText = d.Envelope.stamp(run)
 }
 
 // QuantilesJSON holds the 5, 25, 50, 75 and 95% quantiles of a figure over
@@ -61,6 +80,9 @@ type TrackedJSON struct {
 	PAttractingCI   [2]float64    `json:"p_attracting_ci"`
 	PSemistable     float64       `json:"p_semistable"`
 	PSemistableCI   [2]float64    `json:"p_semistable_ci"`
+	ExistsCount     int64         `json:"exists_count"`
+	AttractingCount int64         `json:"attracting_count"`
+	SemistableCount int64         `json:"semistable_count"`
 	XQuantiles      QuantilesJSON `json:"x_quantiles"`
 	SlopeQuantiles  QuantilesJSON `json:"slope_quantiles"`
 	ReturnTimeQ     QuantilesJSON `json:"return_time_quantiles"`
@@ -136,12 +158,11 @@ func countedJSON(cs []assess.Counted) []CountedJSON {
 // NewAssessJSON converts a Monte Carlo result for JSON output.
 func NewAssessJSON(version, scenario, title string, r *assess.Result) *AssessJSON {
 	out := &AssessJSON{
-		Tool:        "holdfast",
-		Version:     version,
-		Scenario:    scenario,
-		Title:       title,
+		Envelope:    newEnvelope(KindAssess, version, scenario, title),
 		Draws:       r.Draws,
+		Assessed:    r.Succeeded,
 		FailedDraws: int64(r.Draws) - r.Succeeded,
+		Nominal:     newNominalJSON(r.Nominal),
 		Seed:        r.Seed,
 		Plan:        r.Plan.String(),
 		Equilibria:  []TrackedJSON{},
@@ -172,6 +193,7 @@ func NewAssessJSON(version, scenario, title string, r *assess.Result) *AssessJSO
 			PExists: e.P, PExistsCI: e.CI,
 			PAttracting: a.P, PAttractingCI: a.CI,
 			PSemistable: s.P, PSemistableCI: s.CI,
+			ExistsCount: e.Count, AttractingCount: a.Count, SemistableCount: s.Count,
 			XQuantiles:      quantilesJSON(t.X),
 			SlopeQuantiles:  quantilesJSON(t.Slope),
 			ReturnTimeQ:     quantilesJSON(t.ReturnTime),
@@ -226,6 +248,12 @@ func AssessTable(w io.Writer, title, unit string, r *assess.Result) error {
 // AssessTableScreened is AssessTable with a section on which inputs drive
 // each verdict, from the screening measures s (none when s is nil).
 func AssessTableScreened(w io.Writer, title, unit string, r *assess.Result, s *sensitivity.Screening) error {
+	return AssessTableGated(w, title, unit, r, s, nil, Painter{})
+}
+
+// AssessTableGated is AssessTableScreened with the verdicts of judged
+// requirements (painted by p) before the caution.
+func AssessTableGated(w io.Writer, title, unit string, r *assess.Result, s *sensitivity.Screening, outs []gate.Outcome, p Painter) error {
 	if title != "" {
 		fmt.Fprintf(w, "%s\n", title)
 	}
@@ -305,6 +333,7 @@ func AssessTableScreened(w io.Writer, title, unit string, r *assess.Result, s *s
 	for _, msg := range r.Warnings {
 		fmt.Fprintf(w, "Warning: %s\n", msg)
 	}
+	RequirementLines(w, outs, p)
 	fmt.Fprintf(w, "\n%s\n", Caution)
 	return nil
 }

@@ -9,16 +9,16 @@ import (
 	"holdfast/assess/sensitivity"
 )
 
-// SensitivityJSON is the JSON form of a sensitivity ranking.
+// SensitivityJSON is the JSON form of a sensitivity ranking. With the
+// envelope and the scenario's description and text (SetRun) it is a result
+// file that holdfast report renders.
 type SensitivityJSON struct {
-	Tool        string  `json:"tool"`
-	Version     string  `json:"version"`
-	Scenario    string  `json:"scenario"`
-	Title       string  `json:"title"`
-	Target      string  `json:"target"`
-	TargetX     float64 `json:"target_nominal_x"`
-	TargetClass string  `json:"target_nominal_class"`
-	Output      string  `json:"output"`
+	Envelope
+	Model       *ModelJSON `json:"model"`
+	Target      string     `json:"target"`
+	TargetX     float64    `json:"target_nominal_x"`
+	TargetClass string     `json:"target_nominal_class"`
+	Output      string     `json:"output"`
 	// Runs counts every model run: the Saltelli design's N·(k+2) plus a
 	// separate screening run's draws (correlated inputs only).
 	Runs          int      `json:"runs"`
@@ -48,7 +48,16 @@ type SensitivityJSON struct {
 	Reading   []string               `json:"reading"`
 	Notes     []string               `json:"notes"`
 	Warnings  []string               `json:"warnings"`
-	Caution   string                 `json:"caution"`
+	// ScenarioText is the scenario file's full text (its SHA-256 is in
+	// the envelope).
+	ScenarioText string `json:"scenario_text"`
+	Caution      string `json:"caution"`
+}
+
+// SetRun records the command line and the scenario (hash, description
+// and full text).
+func (d *SensitivityJSON) SetRun(run RunInfo) {
+	d.Model, d.ScenarioText = d.Envelope.stamp(run)
 }
 
 // SensitivityRowJSON is one parameter's line of the ranking; numbers that
@@ -123,8 +132,8 @@ func ci(v [2]float64) [2]*float64 { return [2]*float64{num(v[0]), num(v[1])} }
 // NewSensitivityJSON converts a sensitivity result for JSON output.
 func NewSensitivityJSON(version, scenario, title string, r *sensitivity.Result) *SensitivityJSON {
 	out := &SensitivityJSON{
-		Tool: "holdfast", Version: version, Scenario: scenario, Title: title,
-		Target: r.Target, TargetX: r.TargetX, TargetClass: r.TargetClass.String(),
+		Envelope: newEnvelope(KindSensitivity, version, scenario, title),
+		Target:   r.Target, TargetX: r.TargetX, TargetClass: r.TargetClass.String(),
 		Output: r.Output.String(),
 		Runs:   r.Runs + r.ScreenRuns, DesignRuns: r.Runs, ScreeningRuns: r.ScreenRuns,
 		Base: r.Base, Uncertain: r.Uncertain, FailedRuns: r.FailedRuns,

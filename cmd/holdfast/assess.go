@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"io"
@@ -11,7 +12,9 @@ import (
 	"golang.org/x/term"
 
 	"holdfast/assess"
+	"holdfast/assess/gate"
 	"holdfast/assess/sensitivity"
+	"holdfast/assess/summary"
 	"holdfast/report"
 	"holdfast/sample"
 )
@@ -25,6 +28,8 @@ func newAssessCmd() *cobra.Command {
 		seed                   uint64
 		halfWidth              float64
 		quiet                  bool
+		requires               []string
+		rf                     reportFlags
 	)
 	c := &cobra.Command{
 		Use:   "assess SCENARIO",
@@ -38,10 +43,24 @@ quantiles of its position, slope, return time, basin width and barrier,
 the regimes seen, and where the state goes from the current state.
 
 Draw i depends only on the seed and i, so results are identical for any
-number of workers.`,
+number of workers.
+
+--out saves the result file (with the command line, the seed, the scenario
+text and its SHA-256, and the summaries behind the plots), which holdfast
+report renders again at any time. --report FILE.md or FILE.html writes the
+report at once.
+
+--require "LABEL VERDICT OP PROBABILITY" (repeatable) makes the run a gate
+for automated reviews: VERDICT is exists, attracting, semistable or current
+(the state ends there from the current state), OP one of >=, >, <=, <, and
+the probability a number in [0, 1] or a percentage. Each requirement is
+judged on the end of the 95% interval (the lower one for >= and >), not on
+the estimate; the exit status is 3 when one is not met.`,
 		Example: `  holdfast assess demo:lake
   holdfast assess lake.yaml --draws 100000 --plan qmc --seed 7 --out lake-result.json
-  holdfast assess lake.yaml --until-halfwidth 0.005 --max-draws 1000000`,
+  holdfast assess lake.yaml --until-halfwidth 0.005 --max-draws 1000000
+  holdfast assess demo:lake --seed 7 --report lake.md --report lake.html
+  holdfast assess lake.yaml --require "E1 attracting >= 0.95" --require "E3 current <= 5%"`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if err := checkFormat(format, "table", "json"); err != nil {
@@ -63,6 +82,10 @@ number of workers.`,
 			if maxDrw != 0 && (halfWidth == 0 || maxDrw < draws) {
 				return badInput(errors.New("--max-draws needs --until-halfwidth and must be at least --draws"))
 			}
+			reqs, err := gate.ParseAll(requires)
+			if err != nil {
+				return badInput(fmt.Errorf("--require: %w", err))
+			}
 			m, err := loadModel(args[0], sets)
 			if err != nil {
 				return err
@@ -72,7 +95,29 @@ number of workers.`,
 			// Screening measures (which inputs drive each verdict) from the
 			// same draws, at no extra model cost.
 			screen := sensitivity.NewScreen(m, 0)
-			opt.Sink = screen.Add
+			// The summaries behind the report's plots, from the same draws.
+			collect, err := summary.NewCollector(m, summary.Config{})
+			if err != nil {
+				return failed(err)
+			}
+			if len(reqs) > 0 {
+				var labels []string
+				nominal, err := m.Analyze(m.Nominal)
+				if err != nil {
+					return failed(err)
+				}
+				for _, e := range nominal.Equilibria {
+					labels = append(labels, e.Label)
+				}
+				if err := report.CheckRequirements(reqs, labels, m.Scenario.State.HasCurrent); err != nil {
+					return badInput(err)
+				}
+			}
+			opt.Extra = collect.Extra
+			opt.Sink = func(block []assess.Draw) error {
+				screen.Add(block)
+				return collect.Add(block)
+			}
 
 			var csvOut *report.Staged
 			if drawsCSV != "" {
@@ -91,6 +136,7 @@ number of workers.`,
 				csvw := report.NewDrawsCSV(csvOut, m.Names, labels)
 				opt.Sink = func(block []assess.Draw) error {
 					screen.Add(block)
+					collect.Add(block)
 					return csvw.Write(block)
 				}
 			}
@@ -101,6 +147,11 @@ number of workers.`,
 				}
 				defer outFile.Abort()
 			}
+			reports, err := rf.prepare(scenarioPath, out)
+			if err != nil {
+				return err
+			}
+			defer reports.Abort()
 			bar := progress(cmd.ErrOrStderr(), quiet, draws)
 			if bar != nil {
 				opt.Progress = func(done, planned int) {
@@ -120,8 +171,31 @@ number of workers.`,
 			scr := screen.Result()
 			doc := report.NewAssessJSON(version, s.File, s.Title, res)
 			doc.Sensitivity = report.NewScreeningJSON(scr)
+			doc.SetRun(report.RunInfo{Command: commandLine(cmd, args), Scenario: s})
+			doc.Settings = report.NewSettingsJSON(opt)
+			doc.Figures = report.NewFiguresJSON(collect.Summary())
+			outs, err := doc.Judge(reqs)
+			if err != nil {
+				return badInput(err)
+			}
+			doc.Requirements = report.NewRequirementsJSON(outs)
+			var raw bytes.Buffer
+			if err := report.WriteJSON(&raw, doc); err != nil {
+				return failed(err)
+			}
 			if outFile != nil {
-				if err := report.WriteJSON(outFile, doc); err != nil {
+				if _, err := outFile.Write(raw.Bytes()); err != nil {
+					return failed(err)
+				}
+			}
+			if reports != nil {
+				// Render from the result as a file holds it, so that
+				// holdfast report gives the same bytes from --out.
+				saved, err := report.LoadResult(raw.Bytes())
+				if err != nil {
+					return failed(fmt.Errorf("reading back the result: %w", err))
+				}
+				if err := reports.Write(saved); err != nil {
 					return failed(err)
 				}
 			}
@@ -134,13 +208,22 @@ number of workers.`,
 				}
 			}
 			w := cmd.OutOrStdout()
+			if reports != nil && !quiet {
+				fmt.Fprintf(cmd.ErrOrStderr(), "Wrote %s.\n", describeWritten(reports.Written()))
+			}
 			if format == "json" {
-				return failed(report.WriteJSON(w, doc))
+				if _, err := w.Write(raw.Bytes()); err != nil {
+					return failed(err)
+				}
+				return gateError(outs)
 			}
-			if quiet && out != "" {
-				return nil
+			if quiet && (out != "" || reports != nil) {
+				return gateError(outs)
 			}
-			return failed(report.AssessTableScreened(w, s.Title, s.State.Unit, res, scr))
+			if err := report.AssessTableGated(w, s.Title, s.State.Unit, res, scr, outs, painter(w)); err != nil {
+				return failed(err)
+			}
+			return gateError(outs)
 		},
 	}
 	f := c.Flags()
@@ -154,7 +237,9 @@ number of workers.`,
 	f.StringVar(&format, "format", "table", "output format: table or json")
 	f.StringVar(&out, "out", "", "write the JSON result to this file")
 	f.StringVar(&drawsCSV, "draws-csv", "", "write one CSV row per draw to this file")
-	f.BoolVar(&quiet, "quiet", false, "no progress bar; with --out, no table either")
+	f.BoolVar(&quiet, "quiet", false, "no progress bar; with --out or --report, no table either")
+	f.StringArrayVar(&requires, "require", nil, `requirement gate, e.g. "E2 attracting >= 0.95" (repeatable; exit status 3 when not met)`)
+	rf.add(f)
 	return c
 }
 

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 
@@ -18,6 +19,7 @@ func newSensitivityCmd() *cobra.Command {
 		base, workers  int
 		seed           uint64
 		quiet          bool
+		rf             reportFlags
 	)
 	c := &cobra.Command{
 		Use:   "sensitivity SCENARIO --target LABEL",
@@ -47,7 +49,8 @@ The result depends only on the scenario, the options and the seed, not on
 --workers.`,
 		Example: `  holdfast sensitivity demo:lake --target E1
   holdfast sensitivity demo:lake --target E3 --output current --base 4096
-  holdfast sensitivity lake.yaml --target E1 --output position --format json --out lake-sens.json`,
+  holdfast sensitivity lake.yaml --target E1 --output position --format json --out lake-sens.json
+  holdfast sensitivity demo:lake --target E1 --report lake-sens.html`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if err := checkFormat(format, "table", "json"); err != nil {
@@ -77,6 +80,11 @@ The result depends only on the scenario, the options and the seed, not on
 				}
 				defer outFile.Abort()
 			}
+			reports, err := rf.prepare(m.Scenario.File, out)
+			if err != nil {
+				return err
+			}
+			defer reports.Abort()
 			opt := sensitivity.Options{Target: target, Output: o, Base: base, Seed: seed, Workers: workers}
 			bar := progress(cmd.ErrOrStderr(), quiet, base*4)
 			if bar != nil {
@@ -99,8 +107,27 @@ The result depends only on the scenario, the options and the seed, not on
 			}
 			s := m.Scenario
 			doc := report.NewSensitivityJSON(version, s.File, s.Title, res)
+			doc.SetRun(report.RunInfo{Command: commandLine(cmd, args), Scenario: s})
+			var raw bytes.Buffer
+			if err := report.WriteJSON(&raw, doc); err != nil {
+				return failed(err)
+			}
+			if reports != nil {
+				// Render from the result as a file holds it, so that
+				// holdfast report gives the same bytes from --out.
+				saved, err := report.LoadResult(raw.Bytes())
+				if err != nil {
+					return failed(fmt.Errorf("reading back the result: %w", err))
+				}
+				if err := reports.Write(saved); err != nil {
+					return failed(err)
+				}
+				if !quiet {
+					fmt.Fprintf(cmd.ErrOrStderr(), "Wrote %s.\n", describeWritten(reports.Written()))
+				}
+			}
 			if outFile != nil {
-				if err := report.WriteJSON(outFile, doc); err != nil {
+				if _, err := outFile.Write(raw.Bytes()); err != nil {
 					return failed(err)
 				}
 				if err := outFile.Commit(); err != nil {
@@ -109,9 +136,10 @@ The result depends only on the scenario, the options and the seed, not on
 			}
 			w := cmd.OutOrStdout()
 			if format == "json" {
-				return failed(report.WriteJSON(w, doc))
+				_, err := w.Write(raw.Bytes())
+				return failed(err)
 			}
-			if quiet && out != "" {
+			if quiet && (out != "" || reports != nil) {
 				return nil
 			}
 			return failed(report.SensitivityTable(w, s.Title, s.State.Unit, res))
@@ -126,6 +154,7 @@ The result depends only on the scenario, the options and the seed, not on
 	f.StringArrayVar(&sets, "set", nil, "fix a parameter at a value, as name=value (repeatable)")
 	f.StringVar(&format, "format", "table", "output format: table or json")
 	f.StringVar(&out, "out", "", "write the JSON result to this file")
-	f.BoolVar(&quiet, "quiet", false, "no progress bar; with --out, no table either")
+	f.BoolVar(&quiet, "quiet", false, "no progress bar; with --out or --report, no table either")
+	rf.add(f)
 	return c
 }
