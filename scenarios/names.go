@@ -2,6 +2,7 @@ package scenarios
 
 import (
 	"fmt"
+	"holdfast/internal/suggest"
 	"slices"
 	"strings"
 )
@@ -65,7 +66,7 @@ func nearest(word string, cands []string) string {
 			continue
 		}
 		lc := strings.ToLower(c)
-		d := editDistance(w, lc)
+		d := suggest.Distance(w, lc)
 		long := max(len(w), len(lc))
 		ok := d <= 2 && 2*d <= long || 3*d <= long ||
 			len(w) >= 3 && (strings.HasPrefix(lc, w) || strings.HasPrefix(w, lc) && len(lc) >= 3)
@@ -74,32 +75,6 @@ func nearest(word string, cands []string) string {
 		}
 	}
 	return best
-}
-
-// editDistance is the Levenshtein distance between a and b, counted in
-// bytes (Levenshtein 1966; the two-row dynamic programme of Wagner &
-// Fischer 1974). Inputs longer than 64 bytes are not compared.
-func editDistance(a, b string) int {
-	if len(a) > 64 || len(b) > 64 {
-		return max(len(a), len(b))
-	}
-	prev := make([]int, len(b)+1)
-	cur := make([]int, len(b)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(a); i++ {
-		cur[0] = i
-		for j := 1; j <= len(b); j++ {
-			cost := 1
-			if a[i-1] == b[j-1] {
-				cost = 0
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(b)]
 }
 
 // didYouMean returns "; did you mean "x"?" for the nearest candidate, or "".

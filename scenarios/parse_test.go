@@ -2,6 +2,7 @@ package scenarios
 
 import (
 	"errors"
+	"holdfast/internal/suggest"
 	"math"
 	"slices"
 	"strings"
@@ -462,8 +463,8 @@ func TestNames(t *testing.T) {
 	}
 	// Levenshtein (1966) distances checked by hand: kitten → sitting is 3
 	// (two substitutions and one insertion), the classic example.
-	if d := editDistance("kitten", "sitting"); d != 3 {
-		t.Errorf("editDistance(kitten, sitting) = %d, want 3", d)
+	if d := suggest.Distance("kitten", "sitting"); d != 3 {
+		t.Errorf("Distance(kitten, sitting) = %d, want 3", d)
 	}
 	for _, c := range []struct {
 		word string

@@ -2,6 +2,7 @@ package expr
 
 import (
 	"fmt"
+	names "holdfast/internal/suggest"
 	"strings"
 	"unicode/utf8"
 )
@@ -124,7 +125,7 @@ func suggest(name string, cands []string) string {
 		if c == name || c == "" {
 			continue
 		}
-		d := editDistance(name, c)
+		d := names.Distance(name, c)
 		if d > limit || d >= utf8.RuneCountInString(name) {
 			continue
 		}
@@ -134,34 +135,4 @@ func suggest(name string, cands []string) string {
 		}
 	}
 	return best
-}
-
-// editDistance is the optimal-string-alignment distance between a and b:
-// the number of single-character insertions, deletions, substitutions and
-// transpositions of adjacent characters that turn a into b (Damerau 1964,
-// in its restricted form: no substring is edited twice).
-func editDistance(a, b string) int {
-	ra, rb := []rune(a), []rune(b)
-	// Three rolling rows: d[i-2], d[i-1], d[i].
-	prev2 := make([]int, len(rb)+1)
-	prev := make([]int, len(rb)+1)
-	cur := make([]int, len(rb)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(ra); i++ {
-		cur[0] = i
-		for j := 1; j <= len(rb); j++ {
-			cost := 1
-			if ra[i-1] == rb[j-1] {
-				cost = 0
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
-			if i > 1 && j > 1 && ra[i-1] == rb[j-2] && ra[i-2] == rb[j-1] {
-				cur[j] = min(cur[j], prev2[j-2]+1)
-			}
-		}
-		prev2, prev, cur = prev, cur, prev2
-	}
-	return prev[len(rb)]
 }

@@ -2,6 +2,7 @@ package expr
 
 import (
 	"fmt"
+	names "holdfast/internal/suggest"
 	"math"
 	"strings"
 	"testing"
@@ -311,7 +312,7 @@ func TestEditDistance(t *testing.T) {
 		{"same", "same", 0},
 	}
 	for _, tc := range tests {
-		if d := editDistance(tc.a, tc.b); d != tc.d {
+		if d := names.Distance(tc.a, tc.b); d != tc.d {
 			t.Errorf("editDistance(%q, %q) = %d, want %d", tc.a, tc.b, d, tc.d)
 		}
 	}

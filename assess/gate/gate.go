@@ -31,6 +31,7 @@ package gate
 
 import (
 	"fmt"
+	"holdfast/internal/suggest"
 	"math"
 	"strconv"
 	"strings"
@@ -335,35 +336,11 @@ func firstWord(s string) string {
 func nearest(w string) string {
 	best, bd := "", 3
 	for _, name := range verdictNames {
-		if d := distance(w, name); d < bd {
+		if d := suggest.Distance(w, name); d < bd {
 			best, bd = name, d
 		}
 	}
 	return best
-}
-
-// distance is the Levenshtein edit distance of two short strings.
-func distance(a, b string) int {
-	if len(a) > 40 {
-		return 99
-	}
-	prev := make([]int, len(b)+1)
-	cur := make([]int, len(b)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(a); i++ {
-		cur[0] = i
-		for j := 1; j <= len(b); j++ {
-			cost := 1
-			if a[i-1] == b[j-1] {
-				cost = 0
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(b)]
 }
 
 // ParseAll reads several requirements; the first error is returned.
