@@ -22,6 +22,7 @@ import (
 	"holdfast/assess/gate"
 	"holdfast/assess/sensitivity"
 	"holdfast/assess/summary"
+	"holdfast/assess/tipping"
 	"holdfast/sample"
 	"holdfast/scenarios"
 )
@@ -97,6 +98,49 @@ func makeFixtures() ([]byte, []byte, error) {
 	return a.Bytes(), b.Bytes(), nil
 }
 
+// fixtureCommandSweep is the command line recorded in the sweep fixture.
+var fixtureCommandSweep = []string{"holdfast", "sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.4", "--track", "E1",
+	"--draws", "300", "--seed", "5", "--steps", "5"}
+
+var (
+	sweepOnce sync.Once
+	sweepRaw  []byte
+	sweepErr  error
+)
+
+// sweepFixture is the result file of a sweep of the lake demo's load
+// (illustrative numbers), made the way the sweep command makes it.
+func sweepFixture(t testing.TB) []byte {
+	t.Helper()
+	sweepOnce.Do(func() {
+		s, err := scenarios.LoadDemo("lake")
+		if err != nil {
+			sweepErr = err
+			return
+		}
+		m, err := assess.Compile(s)
+		if err != nil {
+			sweepErr = err
+			return
+		}
+		r, err := tipping.Run(context.Background(), m, tipping.Options{Driver: "L", From: 0.05, To: 0.4, Track: "E1", Steps: 5,
+			Risk: 0.05, Draws: 300, Seed: 5, Plan: sample.LHS})
+		if err != nil {
+			sweepErr = err
+			return
+		}
+		doc := NewSweepJSON("test", s.File, s.Title, r)
+		doc.SetRun(RunInfo{Command: fixtureCommandSweep, Scenario: s})
+		var b bytes.Buffer
+		sweepErr = WriteJSON(&b, doc)
+		sweepRaw = b.Bytes()
+	})
+	if sweepErr != nil {
+		t.Fatal(sweepErr)
+	}
+	return sweepRaw
+}
+
 func load(t testing.TB, raw []byte) *Saved {
 	t.Helper()
 	s, err := LoadResult(raw)
@@ -123,7 +167,7 @@ func edit(t *testing.T, raw []byte, change func(doc map[string]any)) []byte {
 
 func TestEnvelopeOfEveryResult(t *testing.T) {
 	a, s := fixtures(t)
-	for _, raw := range [][]byte{a, s} {
+	for _, raw := range [][]byte{a, s, sweepFixture(t)} {
 		var doc map[string]any
 		if err := json.Unmarshal(raw, &doc); err != nil {
 			t.Fatal(err)
@@ -177,9 +221,30 @@ func TestLoadResultRejectsWhatIsNotARenderableResult(t *testing.T) {
 			d["scenario_text"] = strings.Replace(d["scenario_text"].(string), "median: 0.1", "median: 0.2", 1)
 		}), "does not match its recorded SHA-256"},
 		{"no scenario text", edit(t, a, func(d map[string]any) { delete(d, "scenario_text") }), "no embedded scenario text"},
-		{"sweep", edit(t, a, func(d map[string]any) { d["kind"] = KindSweep }), "sweep results cannot be rendered yet"},
-		{"sweep without envelope", []byte(`{"tool": "holdfast", "version": "0.1.0-dev", "driver": "L", "curve": []}`), "sweep results cannot be rendered yet"},
-		{"unknown kind", edit(t, a, func(d map[string]any) { d["kind"] = "forecast" }), `unknown result kind "forecast"`},
+		{"sweep without envelope", []byte(`{"tool": "holdfast", "version": "0.1.0-dev", "driver": "L", "curve": []}`), "older holdfast"},
+		{"equilibria", edit(t, a, func(d map[string]any) { d["kind"] = KindEquilibria }), "does not render equilibria results"},
+		{"assess as sweep", edit(t, a, func(d map[string]any) { d["kind"] = KindSweep }), "inconsistent result file: sweep range"},
+		{"sweep histogram shape", edit(t, sweepFixture(t), func(d map[string]any) {
+			h := d["critical"].(map[string]any)["histogram"].(map[string]any)
+			h["counts"] = h["counts"].([]any)[1:]
+		}), "critical-value histogram"},
+		{"sweep histogram edges", edit(t, sweepFixture(t), func(d map[string]any) {
+			e := d["critical"].(map[string]any)["histogram"].(map[string]any)["edges"].([]any)
+			e[0], e[1] = e[1], e[0]
+		}), "edges not increasing"},
+		{"sweep curve probability", edit(t, sweepFixture(t), func(d map[string]any) {
+			d["curve"].([]any)[2].(map[string]any)["p_attracting"] = -0.1
+		}), "curve attracting"},
+		{"sweep where", edit(t, sweepFixture(t), func(d map[string]any) {
+			d["limit"].(map[string]any)["where"] = "somewhere"
+		}), `where "somewhere"`},
+		{"sweep risk", edit(t, sweepFixture(t), func(d map[string]any) {
+			d["limit"].(map[string]any)["risk"] = 1.5
+		}), "safe limit at risk 1.5"},
+		{"sweep scenario edited", edit(t, sweepFixture(t), func(d map[string]any) {
+			d["scenario_text"] = d["scenario_text"].(string) + "# edited\n"
+		}), "does not match its recorded SHA-256"},
+		{"unknown kind", edit(t, a, func(d map[string]any) { d["kind"] = "forecast" }), `unknown result kind "forecast" (want assess, sensitivity or sweep)`},
 		{"wrong type", edit(t, a, func(d map[string]any) { d["draws"] = "many" }), "malformed assess result"},
 		{"band shape", edit(t, a, func(d map[string]any) {
 			b := d["figures"].(map[string]any)["rate_band"].(map[string]any)
@@ -226,7 +291,7 @@ func TestRenderingIsByteIdentical(t *testing.T) {
 	// Rendering the same saved result twice gives the same bytes, and so
 	// does a result decoded and encoded again (the file round-trips).
 	a, s := fixtures(t)
-	for _, raw := range [][]byte{a, s} {
+	for _, raw := range [][]byte{a, s, sweepFixture(t)} {
 		var md1, md2, h1, h2 bytes.Buffer
 		if err := WriteMarkdown(&md1, load(t, raw), func(n string) string { return "p/" + n + ".svg" }); err != nil {
 			t.Fatal(err)
@@ -236,6 +301,9 @@ func TestRenderingIsByteIdentical(t *testing.T) {
 		var doc any = sv.Assess
 		if sv.Sensitivity != nil {
 			doc = sv.Sensitivity
+		}
+		if sv.Sweep != nil {
+			doc = sv.Sweep
 		}
 		if err := WriteJSON(&again, doc); err != nil {
 			t.Fatal(err)
@@ -357,7 +425,7 @@ func checkHTML(t *testing.T, page string) {
 
 func TestHTMLIsWellFormedAndSelfContained(t *testing.T) {
 	a, s := fixtures(t)
-	for _, raw := range [][]byte{a, s} {
+	for _, raw := range [][]byte{a, s, sweepFixture(t)} {
 		var b bytes.Buffer
 		if err := WriteHTML(&b, load(t, raw), true); err != nil {
 			t.Fatal(err)
@@ -421,9 +489,13 @@ func TestPlotsAreValidSVGWithTheirSeries(t *testing.T) {
 		"inputs-E3":   {"split distance D"},
 		"convergence": {"E1 attracting", "E2 exists", "E3 attracting", "95% interval", "draws (log scale)"},
 		"ranking":     {"interval", "first-order index", "total index"},
+		// The sweep's: the critical values with the safe limit, and the
+		// probability curve with its band.
+		"critical-values":  {"Critical values of L for E1", "L [g/m^3/yr]", "draws (300)", "safe limit at 5.0% risk"},
+		"curve-attracting": {"P(E1 attracting) along L", "95% interval", "probability"},
 	}
 	seen := map[string]bool{}
-	for _, raw := range [][]byte{a, s} {
+	for _, raw := range [][]byte{a, s, sweepFixture(t)} {
 		plots, err := Plots(load(t, raw), true)
 		if err != nil {
 			t.Fatal(err)

@@ -10,10 +10,13 @@ import (
 	"holdfast/assess/steady"
 )
 
-// EquilibriaJSON is the JSON form of a single-parameter-set analysis.
+// EquilibriaJSON is the JSON form of a single-parameter-set analysis. It
+// carries the envelope of every result (kind "equilibria"); SetRun records
+// the version, the command line and the scenario. holdfast report does not
+// render it.
 type EquilibriaJSON struct {
-	Scenario   string            `json:"scenario"`
-	Title      string            `json:"title"`
+	Envelope
+	Model      *ModelJSON        `json:"model"`
 	Parameters []ParamValueJSON  `json:"parameters"`
 	Domain     [2]float64        `json:"domain"`
 	Equilibria []EquilibriumJSON `json:"equilibria"`
@@ -22,7 +25,16 @@ type EquilibriaJSON struct {
 	Poles      []float64         `json:"poles,omitempty"`
 	Faults     []string          `json:"faults,omitempty"`
 	Warnings   []string          `json:"warnings"`
-	Caution    string            `json:"caution"`
+	// ScenarioText is the scenario file's full text (its SHA-256 is in
+	// the envelope).
+	ScenarioText string `json:"scenario_text"`
+	Caution      string `json:"caution"`
+}
+
+// SetRun records the holdfast version (run.Version), the command line and
+// the scenario (hash, description and full text).
+func (d *EquilibriaJSON) SetRun(run RunInfo) {
+	d.Model, d.ScenarioText = d.Envelope.stamp(run)
 }
 
 // ParamValueJSON is one parameter value used.
@@ -64,11 +76,12 @@ func num(v float64) *float64 {
 	return &v
 }
 
-// NewEquilibriaJSON converts a snapshot for JSON output.
+// NewEquilibriaJSON converts a snapshot for JSON output. Its envelope
+// names the scenario and title; SetRun adds the version, the command line
+// and the scenario's hash and text.
 func NewEquilibriaJSON(scenario, title string, s *assess.Snapshot) *EquilibriaJSON {
 	out := &EquilibriaJSON{
-		Scenario:  scenario,
-		Title:     title,
+		Envelope:  newEnvelope(KindEquilibria, "", scenario, title),
 		Domain:    s.Domain,
 		Undefined: s.Undefined,
 		Poles:     s.Poles,

@@ -8,11 +8,13 @@ import (
 // FuzzLoadResult checks that reading a result file never panics, and
 // that every result it accepts renders as Markdown and HTML without
 // panicking. The seed corpus (testdata/fuzz/FuzzLoadResult) holds an
-// assess and a sensitivity result of the lake demo; the seeds below are
-// small or damaged files.
+// assess, a sensitivity and a sweep result of the lake demo; the seeds
+// below are small or damaged files.
 func FuzzLoadResult(f *testing.F) {
 	f.Add([]byte(`{"format": "holdfast-result", "schema": 1, "kind": "assess", "scenario_sha256": "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855", "scenario_text": ""}`))
 	f.Add([]byte(`{"format": "holdfast-result", "schema": 1, "kind": "sensitivity", "scenario_sha256": "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855", "scenario_text": "", "indices": [{}], "chart": {"bars": [{"label": "a", "value": 1}]}}`))
+	f.Add([]byte(`{"format": "holdfast-result", "schema": 1, "kind": "sweep", "scenario_sha256": "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855", "scenario_text": "", "from": 0, "to": 1, "limit": {"risk": 0.05, "where": "in range", "ci_where": ["unbounded", "beyond end"]}, "critical": {"quantiles_where": {"5": "at start", "25": "in range", "50": "in range", "75": "in range", "95": "beyond end"}, "histogram": {"edges": [0, 1], "counts": [3]}}, "curve": [{"value": 0.5, "regimes": [{"pattern": []}]}]}`))
+	f.Add([]byte(`{"format": "holdfast-result", "schema": 1, "kind": "equilibria", "scenario_text": ""}`))
 	f.Add([]byte(`{"format": "holdfast-result", "schema": 2}`))
 	f.Add([]byte(`[]`))
 	f.Add([]byte("\x00\xff"))

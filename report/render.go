@@ -18,6 +18,8 @@ func newDocument(s *Saved) (*document, error) {
 		return assessDocument(s.Assess), nil
 	case s.Sensitivity != nil:
 		return sensitivityDocument(s.Sensitivity), nil
+	case s.Sweep != nil:
+		return sweepDocument(s.Sweep), nil
 	}
 	return nil, fmt.Errorf("no renderer for %q results", s.Kind)
 }

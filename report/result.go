@@ -31,9 +31,10 @@ const SchemaVersion = 1
 const (
 	KindAssess      = "assess"
 	KindSensitivity = "sensitivity"
-	// KindSweep is reserved for `holdfast sweep`; holdfast report does not
-	// render it yet.
-	KindSweep = "sweep"
+	KindSweep       = "sweep"
+	// KindEquilibria is the JSON of `holdfast equilibria`, which carries
+	// the envelope but is not rendered as a report.
+	KindEquilibria = "equilibria"
 )
 
 // Envelope is the head of every result file: what it is and how it was
@@ -62,16 +63,22 @@ func newEnvelope(kind, version, scenario, title string) Envelope {
 }
 
 // RunInfo is what a command knows about its run beyond the result: its
-// command line and the scenario it read.
+// command line and the scenario it read, and the holdfast version for a
+// result whose constructor takes none (NewEquilibriaJSON).
 type RunInfo struct {
 	Command  []string
 	Scenario *scenarios.Scenario
+	// Version, when not empty, replaces the envelope's version.
+	Version string
 }
 
-// stamp records the command line and the scenario's hash, and returns the
-// scenario's description and text.
+// stamp records the command line, the version and the scenario's hash,
+// and returns the scenario's description and text.
 func (e *Envelope) stamp(run RunInfo) (*ModelJSON, string) {
 	e.Command = append([]string{}, run.Command...)
+	if run.Version != "" {
+		e.Version = run.Version
+	}
 	s := run.Scenario
 	if s == nil {
 		return nil, ""
@@ -220,6 +227,7 @@ type Saved struct {
 	Kind        string
 	Assess      *AssessJSON
 	Sensitivity *SensitivityJSON
+	Sweep       *SweepJSON
 }
 
 // Envelope returns the result's envelope.
@@ -229,6 +237,8 @@ func (s *Saved) Envelope() *Envelope {
 		return &s.Assess.Envelope
 	case s.Sensitivity != nil:
 		return &s.Sensitivity.Envelope
+	case s.Sweep != nil:
+		return &s.Sweep.Envelope
 	}
 	return &Envelope{}
 }
@@ -240,6 +250,8 @@ func (s *Saved) ScenarioText() string {
 		return s.Assess.ScenarioText
 	case s.Sensitivity != nil:
 		return s.Sensitivity.ScenarioText
+	case s.Sweep != nil:
+		return s.Sweep.ScenarioText
 	}
 	return ""
 }
@@ -256,10 +268,6 @@ func (e *ResultError) Error() string {
 	}
 	return e.File + ": " + e.Msg
 }
-
-// ErrSweepNotRenderable is wrapped by the error for a sweep result, which
-// holdfast report does not render yet.
-var ErrSweepNotRenderable = errors.New("sweep results cannot be rendered yet: holdfast report renders assess and sensitivity results")
 
 // MaxResultBytes bounds the size of a result file read back.
 const MaxResultBytes = 256 << 20
@@ -319,7 +327,6 @@ func LoadResult(data []byte) (*Saved, error) {
 		Schema         any     `json:"schema"`
 		Kind           string  `json:"kind"`
 		Tool           string  `json:"tool"`
-		Driver         *string `json:"driver"`
 		ScenarioSHA256 string  `json:"scenario_sha256"`
 		ScenarioText   *string `json:"scenario_text"`
 	}
@@ -327,10 +334,6 @@ func LoadResult(data []byte) (*Saved, error) {
 		return nil, bad("not a holdfast result file (want a JSON object with \"format\": %q)", ResultFormat)
 	}
 	if probe.Format == nil {
-		if probe.Tool == "holdfast" && probe.Driver != nil {
-			// holdfast sweep writes its result without the envelope yet.
-			return nil, &ResultError{Msg: ErrSweepNotRenderable.Error()}
-		}
 		if probe.Tool == "holdfast" {
 			return nil, bad("written by an older holdfast, before result files carried a schema version; run the command again to save a result that holdfast report can read")
 		}
@@ -347,11 +350,11 @@ func LoadResult(data []byte) (*Saved, error) {
 		return nil, bad("written by a newer holdfast (result schema %v; this holdfast reads schema %d and older): use a newer holdfast", schema, SchemaVersion)
 	}
 	switch probe.Kind {
-	case KindAssess, KindSensitivity:
-	case KindSweep:
-		return nil, &ResultError{Msg: ErrSweepNotRenderable.Error()}
+	case KindAssess, KindSensitivity, KindSweep:
+	case KindEquilibria:
+		return nil, bad("holdfast report does not render equilibria results (the JSON of holdfast equilibria): it renders the results of assess, sensitivity and sweep saved with --out; for a report that includes the equilibria at nominal values, run holdfast assess with --report")
 	default:
-		return nil, bad("unknown result kind %q (want %s or %s)", probe.Kind, KindAssess, KindSensitivity)
+		return nil, bad("unknown result kind %q (want %s, %s or %s)", probe.Kind, KindAssess, KindSensitivity, KindSweep)
 	}
 	if probe.ScenarioText == nil {
 		return nil, bad("no embedded scenario text: the result cannot be reproduced from this file")
@@ -374,6 +377,12 @@ func LoadResult(data []byte) (*Saved, error) {
 		err = json.Unmarshal(trimmed, s.Sensitivity)
 		if err == nil {
 			err = s.Sensitivity.check()
+		}
+	case KindSweep:
+		s.Sweep = &SweepJSON{}
+		err = json.Unmarshal(trimmed, s.Sweep)
+		if err == nil {
+			err = s.Sweep.check()
 		}
 	}
 	if err != nil {
@@ -567,6 +576,101 @@ func (d *SensitivityJSON) check() error {
 	}
 	if m := d.Model; m != nil && !(m.State.Domain[0] < m.State.Domain[1]) {
 		return inconsistent("domain %v", m.State.Domain)
+	}
+	return nil
+}
+
+// check validates a sweep result read back.
+func (d *SweepJSON) check() error {
+	if !okCoord(d.From) || !okCoord(d.To) || d.From == d.To {
+		return inconsistent("sweep range %v to %v", d.From, d.To)
+	}
+	if !okPtr(d.Allowed[0]) || !okPtr(d.Allowed[1]) || !okCoord(d.TrackX) {
+		return inconsistent("allowed values or nominal position")
+	}
+	c := &d.Critical
+	if d.Draws < 0 || c.N < 0 || c.N > int64(d.Draws) || d.FailedDraws < 0 {
+		return inconsistent("draw counts (draws %d, assessed %d)", d.Draws, c.N)
+	}
+	for k, n := range c.Counts {
+		if n < 0 || n > int64(d.Draws) {
+			return inconsistent("%d draws of kind %q", n, k)
+		}
+	}
+	probs := func(what string, p float64, ci [2]float64) error {
+		if !okProb(p) || !okProb(ci[0]) || !okProb(ci[1]) || ci[0] > ci[1] {
+			return inconsistent("%s: probability %v with interval %v", what, p, ci)
+		}
+		return nil
+	}
+	where := map[string]bool{"in range": true, "at start": true, "beyond end": true, "unbounded": true}
+	q, qw := c.Quantiles, c.Where
+	for _, v := range []struct {
+		v *float64
+		w string
+	}{{q.Q5, qw.Q5}, {q.Q25, qw.Q25}, {q.Q50, qw.Q50}, {q.Q75, qw.Q75}, {q.Q95, qw.Q95},
+		{d.Limit.Value, d.Limit.Where}, {d.Limit.CI[0], d.Limit.CIWhere[0]}, {d.Limit.CI[1], d.Limit.CIWhere[1]}} {
+		if !okPtr(v.v) || !where[v.w] {
+			return inconsistent("critical value %s where %q", gp(v.v), v.w)
+		}
+	}
+	if !(d.Limit.Risk > 0 && d.Limit.Risk < 1) || !okProb(d.Limit.Coverage) {
+		return inconsistent("safe limit at risk %v", d.Limit.Risk)
+	}
+	h := &d.Hysteresis
+	type share struct {
+		what string
+		p    float64
+		ci   [2]float64
+	}
+	checks := []share{
+		{"no tipping in range", c.ShareWithoutTipping, c.ShareWithoutTippingCI}, {"lost at start", c.ShareLostAtStart, c.ShareLostAtStartCI},
+		{"reversible", h.Reversible.P, h.Reversible.CI}, {"irreversible", h.Irreversible.P, h.Irreversible.CI},
+		{"escapes", h.Escapes.P, h.Escapes.CI}, {"unresolved", h.Unresolved.P, h.Unresolved.CI},
+	}
+	for _, p := range d.Curve {
+		if !okCoord(p.Value) {
+			return inconsistent("curve point at %v", p.Value)
+		}
+		checks = append(checks, share{"curve exists", p.PExists, p.PExistsCI}, share{"curve attracting", p.PAttracting, p.PAttractingCI})
+		for _, g := range p.Regimes {
+			if err := probs("regime", g.P, g.CI); err != nil {
+				return err
+			}
+		}
+	}
+	for _, k := range checks {
+		if err := probs(k.what, k.p, k.ci); err != nil {
+			return err
+		}
+	}
+	for _, qs := range []QuantilesJSON{h.ReturnFold, h.Width} {
+		for _, v := range []*float64{qs.Q5, qs.Q25, qs.Q50, qs.Q75, qs.Q95} {
+			if !okPtr(v) {
+				return inconsistent("hysteresis quantile %v", *v)
+			}
+		}
+	}
+	hg := &c.Histogram
+	if len(hg.Edges) != 0 || len(hg.Counts) != 0 {
+		if len(hg.Edges) != len(hg.Counts)+1 {
+			return inconsistent("critical-value histogram: %d edges for %d bins", len(hg.Edges), len(hg.Counts))
+		}
+		for i, e := range hg.Edges {
+			if !okCoord(e) || (i > 0 && !(e > hg.Edges[i-1])) {
+				return inconsistent("critical-value histogram: edges not increasing")
+			}
+		}
+		for _, k := range hg.Counts {
+			if k < 0 {
+				return inconsistent("critical-value histogram: negative count")
+			}
+		}
+	}
+	if m := d.Model; m != nil {
+		if !okCoord(m.State.Domain[0]) || !okCoord(m.State.Domain[1]) || !(m.State.Domain[0] < m.State.Domain[1]) {
+			return inconsistent("domain %v", m.State.Domain)
+		}
 	}
 	return nil
 }

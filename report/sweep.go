@@ -5,34 +5,86 @@ import (
 	"io"
 	"strings"
 
+	"holdfast/assess/steady"
 	"holdfast/assess/tipping"
 )
 
-// SweepJSON is the JSON form of a driver sweep.
+// SweepJSON is the JSON form of a driver sweep. With the envelope, the
+// scenario's description and text (SetRun), the settings and the
+// critical-value histogram it is a result file that holdfast report
+// renders.
 type SweepJSON struct {
-	Tool        string            `json:"tool"`
-	Version     string            `json:"version"`
-	Scenario    string            `json:"scenario"`
-	Title       string            `json:"title"`
-	Driver      string            `json:"driver"`
-	From        float64           `json:"from"`
-	To          float64           `json:"to"`
-	Allowed     [2]*float64       `json:"allowed"`
-	Track       string            `json:"track"`
-	TrackX      float64           `json:"track_nominal_x"`
-	TrackClass  string            `json:"track_nominal_class"`
-	Draws       int               `json:"draws"`
-	FailedDraws int64             `json:"failed_draws"`
-	Seed        uint64            `json:"seed"`
-	Plan        string            `json:"plan"`
-	Critical    CriticalJSON      `json:"critical"`
-	Limit       LimitJSON         `json:"limit"`
-	Hysteresis  HysteresisJSON    `json:"hysteresis"`
-	Curve       []CurvePointJSON  `json:"curve"`
-	Failures    []CountedJSON     `json:"failures"`
-	Warnings    []string          `json:"warnings"`
-	Caution     string            `json:"caution"`
-	Notes       map[string]string `json:"notes"`
+	Envelope
+	Driver      string      `json:"driver"`
+	From        float64     `json:"from"`
+	To          float64     `json:"to"`
+	Allowed     [2]*float64 `json:"allowed"`
+	Track       string      `json:"track"`
+	TrackX      float64     `json:"track_nominal_x"`
+	TrackClass  string      `json:"track_nominal_class"`
+	Draws       int         `json:"draws"`
+	FailedDraws int64       `json:"failed_draws"`
+	Seed        uint64      `json:"seed"`
+	Plan        string      `json:"plan"`
+	// Settings and Model describe the run for a report's method and
+	// inputs sections.
+	Settings   *SweepSettingsJSON `json:"settings"`
+	Model      *ModelJSON         `json:"model"`
+	Critical   CriticalJSON       `json:"critical"`
+	Limit      LimitJSON          `json:"limit"`
+	Hysteresis HysteresisJSON     `json:"hysteresis"`
+	Curve      []CurvePointJSON   `json:"curve"`
+	Failures   []CountedJSON      `json:"failures"`
+	Warnings   []string           `json:"warnings"`
+	// ScenarioText is the scenario file's full text (its SHA-256 is in
+	// the envelope).
+	ScenarioText string            `json:"scenario_text"`
+	Caution      string            `json:"caution"`
+	Notes        map[string]string `json:"notes"`
+}
+
+// SetRun records the command line and the scenario (hash, description
+// and full text).
+func (d *SweepJSON) SetRun(run RunInfo) {
+	d.Model, d.ScenarioText = d.Envelope.stamp(run)
+}
+
+// SweepSettingsJSON records the settings of a sweep that its method
+// section describes.
+type SweepSettingsJSON struct {
+	Draws int    `json:"draws"`
+	Plan  string `json:"plan"`
+	Seed  uint64 `json:"seed"`
+	// Steps is the number of driver values of the probability curves (0:
+	// none), Risk the α of the safe limit.
+	Steps      int     `json:"steps"`
+	Risk       float64 `json:"risk"`
+	Confidence float64 `json:"confidence"`
+	// Interval is the interval of every probability; LimitInterval that
+	// of the safe limit.
+	Interval      string `json:"interval"`
+	LimitInterval string `json:"limit_interval"`
+	// HistogramMaxBins bounds the critical-value histogram's bins, whose
+	// width follows the Freedman–Diaconis rule.
+	HistogramMaxBins int `json:"histogram_max_bins"`
+	// ScanCells, ScanMaxDepth and RootRelTol are the equilibrium search's
+	// initial grid, bisection depth limit and root tolerance; MaxOrder the
+	// highest derivative order the classification looks at.
+	ScanCells    int     `json:"scan_cells"`
+	ScanMaxDepth int     `json:"scan_max_depth"`
+	RootRelTol   float64 `json:"root_rel_tol"`
+	MaxOrder     int     `json:"max_order"`
+}
+
+func newSweepSettingsJSON(r *tipping.Result) *SweepSettingsJSON {
+	d := steady.DefaultOptions()
+	return &SweepSettingsJSON{
+		Draws: r.Draws, Plan: r.Plan.String(), Seed: r.Seed, Steps: len(r.Curve), Risk: r.Limit.Risk, Confidence: 0.95,
+		Interval:         "Wilson score; Clopper–Pearson when the count is 0 or N",
+		LimitInterval:    "distribution-free, between two order statistics",
+		HistogramMaxBins: tipping.MaxHistogramBins,
+		ScanCells:        d.Grid, ScanMaxDepth: d.MaxDepth, RootRelTol: d.RelTol, MaxOrder: 7,
+	}
 }
 
 // SweepQuantilesJSON holds driver values at the 5, 25, 50, 75 and 95%
@@ -68,6 +120,9 @@ type CriticalJSON struct {
 	ShareWithoutTippingCI [2]float64         `json:"share_without_tipping_ci"`
 	ShareLostAtStart      float64            `json:"share_lost_at_start"`
 	ShareLostAtStartCI    [2]float64         `json:"share_lost_at_start_ci"`
+	// Histogram counts the critical values in range (see
+	// tipping.Result.CriticalHistogram); its label is the driver.
+	Histogram HistogramJSON `json:"histogram"`
 }
 
 // LimitJSON is the safe limit at a risk with its order-statistic interval.
@@ -117,8 +172,8 @@ func NewSweepJSON(version, scenario, title string, r *tipping.Result) *SweepJSON
 	c := &r.Critical
 	q := c.Quantiles
 	out := &SweepJSON{
-		Tool: "holdfast", Version: version, Scenario: scenario, Title: title,
-		Driver: r.Driver, From: r.From, To: r.To,
+		Envelope: newEnvelope(KindSweep, version, scenario, title),
+		Driver:   r.Driver, From: r.From, To: r.To,
 		Allowed:     [2]*float64{num(r.Allowed[0]), num(r.Allowed[1])},
 		Track:       r.Track,
 		TrackX:      r.Nominal.X,
@@ -147,6 +202,7 @@ func NewSweepJSON(version, scenario, title string, r *tipping.Result) *SweepJSON
 			Coverage: zeroNaN(r.Limit.Coverage),
 			Ranks:    r.Limit.Ranks,
 		},
+		Settings: newSweepSettingsJSON(r),
 		Curve:    []CurvePointJSON{},
 		Failures: countedJSON(r.Failed),
 		Warnings: append([]string{}, r.Warnings...),
@@ -156,11 +212,14 @@ func NewSweepJSON(version, scenario, title string, r *tipping.Result) *SweepJSON
 			"limit":      "the risk-quantile of the critical values (order statistic of rank ceil(N*risk)); ci is the distribution-free order-statistic interval",
 			"curve":      "engine verdicts on the same draws at each driver value; path_disagreements counts draws where the engine's identity (from nominal values) differs from the sweep's (along the driver)",
 			"hysteresis": "irreversible: the return fold lies outside the driver's allowed values, so reversing the driver alone cannot undo the shift",
+			"histogram":  "critical.histogram counts the critical values in range only; draws lost at from and draws without tipping are in critical.counts",
 		},
 	}
 	for k := tipping.None; k <= tipping.Failed; k++ {
 		out.Critical.Counts[k.String()] = c.Count[k]
 	}
+	hist := r.CriticalHistogram()
+	out.Critical.Histogram = HistogramJSON{Label: r.Driver, Edges: nonNil(hist.Edges), Counts: nonNilInts(hist.Counts), N: hist.N}
 	w, a := probJSON(c.WithoutTipping), probJSON(c.LostAtStart)
 	out.Critical.ShareWithoutTipping, out.Critical.ShareWithoutTippingCI = w.P, w.CI
 	out.Critical.ShareLostAtStart, out.Critical.ShareLostAtStartCI = a.P, a.CI

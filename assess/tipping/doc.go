@@ -66,7 +66,9 @@
 // equilibrium by each driver value. The limit at risk α is its α-quantile
 // (the order statistic of rank ⌈Nα⌉), with the distribution-free interval
 // between two order statistics whose ranks come from the binomial
-// distribution (OrderInterval; Conover 1999, §3.2).
+// distribution (OrderInterval; Conover 1999, §3.2). CriticalHistogram
+// bins the critical values in range (Freedman–Diaconis widths) so that a
+// saved result can draw their distribution without the per-draw values.
 //
 // # Curves
 //

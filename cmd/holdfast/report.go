@@ -26,10 +26,10 @@ func newReportCmd() *cobra.Command {
 	c := &cobra.Command{
 		Use:   "report RESULT.json --md FILE --html FILE [--plots DIR]",
 		Short: "Render a saved result as a Markdown or HTML report with plots",
-		Long: `report renders a result file saved with --out by assess or sensitivity
-into a report to attach to a planning report or a design review, without
-running the model again: the caution notice, the inputs, the method with
-the run's own settings, the results with their intervals, plots, every
+		Long: `report renders a result file saved with --out by assess, sensitivity or
+sweep into a report to attach to a planning report or a design review,
+without running the model again: the caution notice, the inputs, the
+method with the run's own settings, the results with their intervals, plots, every
 warning, and the exact command and scenario text to reproduce the run.
 
   --md FILE     Markdown that reads on any Markdown viewer; its plots go as

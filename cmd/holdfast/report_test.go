@@ -8,6 +8,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"holdfast/report"
 )
 
 var update = flag.Bool("update", false, "rewrite the golden files in testdata/golden")
@@ -75,6 +77,16 @@ func TestGoldenMarkdownReports(t *testing.T) {
 		t.Fatal(err)
 	}
 	golden(t, gdir, "sensitivity-lake.md", md)
+	_, stderr, code = holdfast(t, "sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.4", "--track", "E1",
+		"--draws", "400", "--seed", "7", "--steps", "5", "--report", "lake-sweep.md", "--quiet")
+	if code != 0 {
+		t.Fatalf("sweep: exit %d: %s", code, stderr)
+	}
+	md, err = os.ReadFile("lake-sweep.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	golden(t, gdir, "sweep-lake.md", md)
 }
 
 // readTree returns every file under dir by relative path.
@@ -143,6 +155,36 @@ func TestReRenderingASavedResultIsByteIdentical(t *testing.T) {
 	y, _ := os.ReadFile("s2.html")
 	if len(x) == 0 || !bytes.Equal(x, y) {
 		t.Error("sensitivity HTML differs after re-rendering")
+	}
+	// And so does the sweep result, with every plot.
+	sweepDir, again := filepath.Join(root, "sweep"), filepath.Join(root, "sweep-again")
+	os.MkdirAll(sweepDir, 0o755)
+	t.Chdir(sweepDir)
+	_, stderr, code = holdfast(t, "sweep", "demo:reactor", "--driver", "a", "--from", "0.25", "--to", "0.08", "--track", "E1",
+		"--draws", "200", "--steps", "3", "--seed", "4", "--out", "w.json", "--report", "w.md", "--report", "w.html", "--png", "--quiet")
+	if code != 0 {
+		t.Fatalf("sweep: exit %d: %s", code, stderr)
+	}
+	t.Chdir(root)
+	_, stderr, code = holdfast(t, "report", filepath.Join("sweep", "w.json"), "--md", filepath.Join("sweep-again", "w.md"),
+		"--html", filepath.Join("sweep-again", "w.html"), "--png", "--quiet")
+	if code != 0 {
+		t.Fatalf("report of the sweep: exit %d: %s", code, stderr)
+	}
+	a, b = readTree(t, sweepDir), readTree(t, again)
+	delete(a, "w.json")
+	if len(a) != len(b) {
+		t.Fatalf("sweep files %d and %d", len(a), len(b))
+	}
+	for name, data := range a {
+		if !bytes.Equal(data, b[name]) {
+			t.Errorf("sweep %s differs after re-rendering", name)
+		}
+	}
+	for _, name := range []string{"w.md", "w.html", "w-plots/critical-values.svg", "w-plots/critical-values.png", "w-plots/curve-attracting.svg"} {
+		if _, ok := a[filepath.FromSlash(name)]; !ok {
+			t.Errorf("no %s", name)
+		}
 	}
 }
 
@@ -272,7 +314,8 @@ func TestReportBadInput(t *testing.T) {
 		{[]string{"report", alter("newer.json", func(d map[string]any) { d["schema"] = 99 }), "--md", out}, "written by a newer holdfast (result schema 99"},
 		{[]string{"report", write("cut.json", raw[:len(raw)*2/3]), "--md", out}, "truncated"},
 		{[]string{"report", alter("edited.json", func(d map[string]any) { d["scenario_text"] = d["scenario_text"].(string) + "# edited\n" }), "--md", out}, "does not match its recorded SHA-256"},
-		{[]string{"report", alter("sweep.json", func(d map[string]any) { d["kind"] = "sweep" }), "--md", out}, "sweep results cannot be rendered yet"},
+		{[]string{"report", alter("eq.json", func(d map[string]any) { d["kind"] = "equilibria" }), "--md", out}, "does not render equilibria results"},
+		{[]string{"report", alter("sweep.json", func(d map[string]any) { d["kind"] = "sweep" }), "--md", out}, "inconsistent result file: sweep range"},
 		{[]string{"report", filepath.Join(dir, "none.json"), "--md", out}, "none.json: no such file"},
 		{[]string{"report", dir, "--md", out}, "is a directory"},
 		{[]string{"report", good}, "nothing to do"},
@@ -287,6 +330,9 @@ func TestReportBadInput(t *testing.T) {
 		{[]string{"assess", "demo:lake", "--draws", "50", "--png"}, "--png needs"},
 		{[]string{"assess", "demo:lake", "--draws", "50", "--report", dir + string(filepath.Separator) + ".html", "--plots", good}, "is a file, not a folder"},
 		{[]string{"sensitivity", "demo:lake", "--target", "E3", "--base", "64", "--report", filepath.Join(dir, "s.txt")}, "want a file ending in .md or .html"},
+		{[]string{"sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.3", "--track", "E1", "--draws", "20", "--report", filepath.Join(dir, "w.txt")}, "want a file ending in .md or .html"},
+		{[]string{"sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.3", "--track", "E1", "--draws", "20", "--png"}, "--png needs"},
+		{[]string{"sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.3", "--track", "E1", "--draws", "20", "--report", good + ".md", "--plots", good}, "is a file, not a folder"},
 	}
 	for _, c := range cases {
 		stdout, stderr, code := holdfast(t, c.args...)
@@ -301,17 +347,32 @@ func TestReportBadInput(t *testing.T) {
 		}
 		noTrace(t, stderr)
 	}
-	// A result of holdfast sweep is refused clearly until reports render
-	// sweeps.
+	// The JSON of holdfast equilibria carries the envelope but is refused
+	// clearly, leaving no report.
+	eqOut, stderr, code := holdfast(t, "equilibria", "demo:lake", "--format", "json")
+	if code != 0 {
+		t.Fatalf("equilibria: exit %d: %s", code, stderr)
+	}
+	if _, stderr, code := holdfast(t, "report", write("equilibria.json", []byte(eqOut)), "--md", out); code != exitBad || !strings.Contains(stderr, "does not render equilibria results") {
+		t.Errorf("equilibria result: exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "out", "r.md")); err == nil {
+		t.Error("a refused result left a report")
+	}
+	// A sweep result renders; it has no probabilities to gate.
 	sw := filepath.Join(dir, "sweep.json")
 	if _, stderr, code := holdfast(t, "sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.3", "--track", "E1", "--draws", "40", "--out", sw, "--quiet"); code != 0 {
 		t.Fatalf("sweep: exit %d: %s", code, stderr)
 	}
-	if _, stderr, code := holdfast(t, "report", sw, "--md", out); code != exitBad || !strings.Contains(stderr, "sweep results cannot be rendered yet") {
-		t.Errorf("sweep result: exit %d: %s", code, stderr)
+	swMD := filepath.Join(dir, "sweep-report", "sweep.md")
+	if stdout, stderr, code := holdfast(t, "report", sw, "--md", swMD); code != 0 || !strings.Contains(stdout, "Wrote ") || !strings.Contains(stdout, "qualified expert") {
+		t.Errorf("sweep result: exit %d: %s%s", code, stdout, stderr)
 	}
-	if _, err := os.Stat(filepath.Join(dir, "out", "r.md")); err == nil {
-		t.Error("a refused result left a report")
+	if b, err := os.ReadFile(swMD); err != nil || !strings.Contains(string(b), "## Tipping distribution") {
+		t.Errorf("sweep report: %v", err)
+	}
+	if _, stderr, code := holdfast(t, "report", sw, "--require", "E1 exists >= 0.5"); code != exitBad || !strings.Contains(stderr, "requirements apply to assess results") {
+		t.Errorf("gate on a sweep: exit %d %s", code, stderr)
 	}
 	if b, _ := os.ReadFile(good); !bytes.Equal(b, raw) {
 		t.Error("the result file was overwritten")
@@ -327,7 +388,7 @@ func TestReportBadInput(t *testing.T) {
 	}
 	scen := write("own.yaml", mustRead(t, filepath.Join("..", "..", "scenarios", "demos", "lake.yaml")))
 	before, _ := os.ReadFile(scen)
-	_, stderr, code := holdfast(t, "assess", scen, "--draws", "50", "--report", filepath.Join(dir, "own.md"), "--plots", filepath.Dir(scen), "--quiet")
+	_, stderr, code = holdfast(t, "assess", scen, "--draws", "50", "--report", filepath.Join(dir, "own.md"), "--plots", filepath.Dir(scen), "--quiet")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -378,5 +439,32 @@ func TestCommandLineIsRecorded(t *testing.T) {
 		if (p.Name == "Kp" || p.Name == "hs") != p.Set {
 			t.Errorf("%s: set_on_command_line %v", p.Name, p.Set)
 		}
+	}
+}
+
+func TestEquilibriaJSONEnvelope(t *testing.T) {
+	// The JSON of holdfast equilibria opens with the envelope of every
+	// result, and keeps the keys of its analysis.
+	stdout, stderr, code := holdfast(t, "equilibria", "demo:lake", "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var doc map[string]any
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	for key, want := range map[string]any{"format": report.ResultFormat, "schema": float64(report.SchemaVersion), "kind": report.KindEquilibria,
+		"tool": "holdfast", "scenario": "demo:lake", "title": "Nutrient-loaded lake (illustrative numbers)"} {
+		if doc[key] != want {
+			t.Errorf("%s = %v, want %v", key, doc[key], want)
+		}
+	}
+	for _, key := range []string{"version", "command", "scenario_sha256", "scenario_text", "equilibria", "current", "parameters", "caution"} {
+		if _, ok := doc[key]; !ok {
+			t.Errorf("no %q", key)
+		}
+	}
+	if !strings.HasPrefix(stdout, "{\n  \"format\": \"holdfast-result\",") {
+		t.Error("the envelope must come first")
 	}
 }

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 
@@ -20,6 +21,7 @@ func newSweepCmd() *cobra.Command {
 		draws, workers, steps       int
 		seed                        uint64
 		quiet                       bool
+		rf                          reportFlags
 	)
 	c := &cobra.Command{
 		Use:   "sweep SCENARIO --driver NAME --from A --to B --track LABEL",
@@ -44,9 +46,15 @@ equilibrium exists and attracts, and of each regime, at each value.
 The driver may be swept up (A < B) or down (A > B). An uncertain driver
 may take the values of its distribution's support; a fixed one (or one
 fixed with --set) any finite value. The sweep replaces the driver in every
-draw.`,
+draw.
+
+--out saves the result file (with the command line, the seed, the scenario
+text and its SHA-256, and a histogram of the critical values), which
+holdfast report renders again at any time. --report FILE.md or FILE.html
+writes the report at once.`,
 		Example: `  holdfast sweep demo:lake --driver L --from 0.05 --to 0.4 --track E1
   holdfast sweep demo:lake --driver L --from 0.05 --to 0.4 --track E1 --risk 0.01 --steps 21 --format json
+  holdfast sweep demo:lake --driver L --from 0.05 --to 0.4 --track E1 --out lake-sweep.json --report lake-sweep.html
   holdfast sweep demo:reactor --driver a --from 0.25 --to 0.08 --track E1 --draws 20000`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -71,6 +79,11 @@ draw.`,
 				}
 				defer outFile.Abort()
 			}
+			reports, err := rf.prepare(m.Scenario.File, out)
+			if err != nil {
+				return err
+			}
+			defer reports.Abort()
 			opt := tipping.Options{
 				Driver: driver, From: from, To: to, Track: track, Steps: steps, Risk: risk,
 				Draws: draws, Seed: seed, Plan: kind, Workers: workers,
@@ -96,8 +109,27 @@ draw.`,
 			}
 			s := m.Scenario
 			doc := report.NewSweepJSON(version, s.File, s.Title, res)
+			doc.SetRun(report.RunInfo{Command: commandLine(cmd, args), Scenario: s})
+			var raw bytes.Buffer
+			if err := report.WriteJSON(&raw, doc); err != nil {
+				return failed(err)
+			}
+			if reports != nil {
+				// Render from the result as a file holds it, so that
+				// holdfast report gives the same bytes from --out.
+				saved, err := report.LoadResult(raw.Bytes())
+				if err != nil {
+					return failed(fmt.Errorf("reading back the result: %w", err))
+				}
+				if err := reports.Write(saved); err != nil {
+					return failed(err)
+				}
+				if !quiet {
+					fmt.Fprintf(cmd.ErrOrStderr(), "Wrote %s.\n", describeWritten(reports.Written()))
+				}
+			}
 			if outFile != nil {
-				if err := report.WriteJSON(outFile, doc); err != nil {
+				if _, err := outFile.Write(raw.Bytes()); err != nil {
 					return failed(err)
 				}
 				if err := outFile.Commit(); err != nil {
@@ -106,9 +138,10 @@ draw.`,
 			}
 			w := cmd.OutOrStdout()
 			if format == "json" {
-				return failed(report.WriteJSON(w, doc))
+				_, err := w.Write(raw.Bytes())
+				return failed(err)
 			}
-			if quiet && out != "" {
+			if quiet && (out != "" || reports != nil) {
 				return nil
 			}
 			driverUnit := ""
@@ -132,7 +165,8 @@ draw.`,
 	f.IntVar(&workers, "workers", 0, "worker goroutines (0: all cores); results do not depend on it")
 	f.StringVar(&format, "format", "table", "output format: table or json")
 	f.StringVar(&out, "out", "", "write the JSON result to this file")
-	f.BoolVar(&quiet, "quiet", false, "no progress bar; with --out, no table either")
+	f.BoolVar(&quiet, "quiet", false, "no progress bar; with --out or --report, no table either")
+	rf.add(f)
 	for _, name := range []string{"driver", "from", "to", "track"} {
 		_ = c.MarkFlagRequired(name)
 	}
