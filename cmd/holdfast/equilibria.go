@@ -40,7 +40,9 @@ and how long it takes.`,
 			s := m.Scenario
 			out := cmd.OutOrStdout()
 			if format == "json" {
-				return failed(report.WriteJSON(out, report.NewEquilibriaJSON(s.File, s.Title, snap)))
+				doc := report.NewEquilibriaJSON(s.File, s.Title, snap)
+				doc.SetRun(report.RunInfo{Version: version, Command: commandLine(cmd, args), Scenario: s})
+				return failed(report.WriteJSON(out, doc))
 			}
 			return failed(report.EquilibriaTable(out, s.Title, s.State.Unit, snap))
 		},
