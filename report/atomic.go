@@ -16,6 +16,9 @@ type Staged struct {
 	path string
 	tmp  *os.File
 	done bool
+	// made lists the folders Stage created, deepest first; Abort removes
+	// them again while they are empty.
+	made []string
 }
 
 // Stage starts writing the file path. It refuses a path that names one of
@@ -35,14 +38,36 @@ func Stage(path string, protect ...string) (*Staged, error) {
 		return nil, fmt.Errorf("output %s: is a directory", path)
 	}
 	dir := filepath.Dir(abs)
+	made := missingDirs(dir)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, fmt.Errorf("output %s: %w", path, err)
 	}
 	tmp, err := os.CreateTemp(dir, "."+filepath.Base(abs)+".tmp-*")
 	if err != nil {
+		removeEmpty(made)
 		return nil, fmt.Errorf("output %s: %w", path, err)
 	}
-	return &Staged{path: abs, tmp: tmp}, nil
+	return &Staged{path: abs, tmp: tmp, made: made}, nil
+}
+
+// missingDirs lists dir and those of its parents that do not exist yet,
+// deepest first.
+func missingDirs(dir string) []string {
+	var made []string
+	for d := filepath.Clean(dir); ; d = filepath.Dir(d) {
+		if _, err := os.Stat(d); err == nil || d == filepath.Dir(d) {
+			return made
+		}
+		made = append(made, d)
+	}
+}
+
+// removeEmpty removes the folders listed, deepest first, as long as they
+// are empty (os.Remove leaves a folder that holds anything).
+func removeEmpty(dirs []string) {
+	for _, d := range dirs {
+		os.Remove(d)
+	}
 }
 
 // Write writes to the temporary file.
@@ -82,6 +107,7 @@ func (s *Staged) Abort() {
 	s.done = true
 	s.tmp.Close()
 	os.Remove(s.tmp.Name())
+	removeEmpty(s.made)
 }
 
 // WriteFileAtomic writes a file whole or not at all through Stage.

@@ -163,6 +163,9 @@ type Reports struct {
 	opt      ReportOptions
 	md, html *Staged
 	plotsDir string
+	// madeDirs lists the folders PrepareReports created, deepest first,
+	// so that an aborted run can remove them again while they are empty.
+	madeDirs []string
 	staged   []*Staged
 	written  []string
 	done     bool
@@ -199,6 +202,7 @@ func PrepareReports(opt ReportOptions) (*Reports, error) {
 			r.Abort()
 			return nil, fmt.Errorf("plots folder %s: is a file, not a folder", r.plotsDir)
 		}
+		r.madeDirs = missingDirs(r.plotsDir)
 		if err := os.MkdirAll(r.plotsDir, 0o755); err != nil {
 			r.Abort()
 			return nil, fmt.Errorf("plots folder %s: %w", r.plotsDir, err)
@@ -324,4 +328,9 @@ func (r *Reports) Abort() {
 	}
 	r.md.Abort()
 	r.html.Abort()
+	if !r.done {
+		// No partial output: folders this run made go again (os.Remove
+		// leaves a folder that holds anything).
+		removeEmpty(r.madeDirs)
+	}
 }
