@@ -477,6 +477,10 @@ func (w *worker) track(res *steady.Result) {
 				continue
 			}
 			s.exists, s.x = true, x
+			if j < 0 {
+				// Newton's method found it: is it one the scan reported?
+				j = nearest(eqs, x, w.m.Domain)
+			}
 			if j >= 0 && w.claimed[j] < 0 {
 				w.claimed[j] = k
 				s.idx, s.x, s.slope = j, eqs[j].X, eqs[j].Slope
