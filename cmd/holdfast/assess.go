@@ -152,18 +152,10 @@ the estimate; the exit status is 3 when one is not met.`,
 				return err
 			}
 			defer reports.Abort()
-			bar := progress(cmd.ErrOrStderr(), quiet, draws)
-			if bar != nil {
-				opt.Progress = func(done, planned int) {
-					bar.ChangeMax(planned)
-					bar.Set(done)
-				}
-			}
+			var endBar func()
+			opt.Progress, endBar = progress(cmd.ErrOrStderr(), quiet, draws)
 			res, err := assess.Run(cmd.Context(), m, opt)
-			if bar != nil {
-				bar.Finish()
-				bar.Clear()
-			}
+			endBar()
 			if err != nil {
 				return failed(err)
 			}
@@ -243,18 +235,28 @@ the estimate; the exit status is 3 when one is not met.`,
 	return c
 }
 
-// progress returns a progress bar on stderr when stderr is a terminal,
-// the run is long enough to want one, and --quiet is off; nil otherwise.
-func progress(w io.Writer, quiet bool, draws int) *progressbar.ProgressBar {
+// progress returns a progress callback drawing a bar on stderr when stderr
+// is a terminal, the run is long enough to want one (planned draws) and
+// --quiet is off, and a function that clears the bar when the run ends.
+// Otherwise the callback is nil and done does nothing.
+func progress(w io.Writer, quiet bool, planned int) (update func(done, planned int), done func()) {
 	f, ok := w.(*os.File)
-	if quiet || !ok || !term.IsTerminal(int(f.Fd())) || draws < 20000 {
-		return nil
+	if quiet || !ok || !term.IsTerminal(int(f.Fd())) || planned < 20000 {
+		return nil, func() {}
 	}
-	return progressbar.NewOptions(draws,
+	bar := progressbar.NewOptions(planned,
 		progressbar.OptionSetWriter(w),
 		progressbar.OptionSetDescription("draws"),
 		progressbar.OptionShowCount(),
 		progressbar.OptionThrottle(200e6),
 		progressbar.OptionSetWidth(30),
 	)
+	update = func(done, planned int) {
+		bar.ChangeMax(planned)
+		bar.Set(done)
+	}
+	return update, func() {
+		bar.Finish()
+		bar.Clear()
+	}
 }

@@ -86,18 +86,10 @@ The result depends only on the scenario, the options and the seed, not on
 			}
 			defer reports.Abort()
 			opt := sensitivity.Options{Target: target, Output: o, Base: base, Seed: seed, Workers: workers}
-			bar := progress(cmd.ErrOrStderr(), quiet, base*4)
-			if bar != nil {
-				opt.Progress = func(done, planned int) {
-					bar.ChangeMax(planned)
-					bar.Set(done)
-				}
-			}
+			var endBar func()
+			opt.Progress, endBar = progress(cmd.ErrOrStderr(), quiet, base*4)
 			res, err := sensitivity.Run(cmd.Context(), m, opt)
-			if bar != nil {
-				bar.Finish()
-				bar.Clear()
-			}
+			endBar()
 			var ie *sensitivity.InputError
 			if errors.As(err, &ie) {
 				return badInput(err)

@@ -88,18 +88,10 @@ writes the report at once.`,
 				Driver: driver, From: from, To: to, Track: track, Steps: steps, Risk: risk,
 				Draws: draws, Seed: seed, Plan: kind, Workers: workers,
 			}
-			bar := progress(cmd.ErrOrStderr(), quiet, draws*max(steps, 1))
-			if bar != nil {
-				opt.Progress = func(done, planned int) {
-					bar.ChangeMax(planned)
-					bar.Set(done)
-				}
-			}
+			var endBar func()
+			opt.Progress, endBar = progress(cmd.ErrOrStderr(), quiet, draws*max(steps, 1))
 			res, err := tipping.Run(cmd.Context(), m, opt)
-			if bar != nil {
-				bar.Finish()
-				bar.Clear()
-			}
+			endBar()
 			var oe *tipping.OptionError
 			if errors.As(err, &oe) {
 				return badInput(fmt.Errorf("--%s: %s", oe.Option, oe.Msg))
