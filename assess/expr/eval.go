@@ -23,6 +23,7 @@ type Machine struct {
 	gv, gd  []float64 // ParamGrad: values and their x-derivatives
 	gb, gbd []float64 // ParamGrad: adjoints and their x-derivatives
 	dg      diagState // Diagnose memo for defines
+	iv      ivState   // Interval, IntervalSlope registers
 }
 
 // NewMachine returns scratch space for evaluating p.
@@ -46,6 +47,7 @@ func (p *Program) NewMachine() *Machine {
 		m.gv[c.reg] = c.val
 	}
 	m.ts.r[regState].v[1] = 1 // x = x0 + t
+	m.ivInit()
 	return m
 }
 
