@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"holdfast/assess"
+	"holdfast/assess/steady"
 	"holdfast/sample"
 	"holdfast/scenarios"
 )
@@ -75,8 +76,9 @@ func BenchmarkCertifiedMonteCarlo(b *testing.B) {
 	}
 }
 
-// BenchmarkCertify times the certification of one draw alone (lake demo,
-// one core), beside the equilibrium search it checks.
+// BenchmarkCertify times, on one core, the certification of one lake
+// draw (certify) beside the equilibrium search that the engine runs for
+// the same draw (find, with the engine's settings).
 func BenchmarkCertify(b *testing.B) {
 	m := demoModel(b, "lake")
 	d, err := m.Design(sample.Random, 4096, 1)
@@ -89,17 +91,40 @@ func BenchmarkCertify(b *testing.B) {
 		d.Draw(i, thetas[i])
 	}
 	th := make([]float64, len(m.Names))
-	ch, err := NewChecker(Options{RootWidth: math.Inf(1)})
-	if err != nil {
-		b.Fatal(err)
-	}
-	fn := Bind(m.Program.NewMachine(), th)
-	i := 0
-	for b.Loop() {
-		copy(th, thetas[i&4095])
-		if _, err := ch.Certify(fn, m.Domain[0], m.Domain[1]); err != nil {
+	b.Run("certify", func(b *testing.B) {
+		ch, err := NewChecker(Options{RootWidth: math.Inf(1)})
+		if err != nil {
 			b.Fatal(err)
 		}
-		i++
-	}
+		fn := Bind(m.Program.NewMachine(), th)
+		evals, i := 0, 0
+		for b.Loop() {
+			copy(th, thetas[i&4095])
+			rep, err := ch.Certify(fn, m.Domain[0], m.Domain[1])
+			if err != nil {
+				b.Fatal(err)
+			}
+			evals += rep.Evals
+			i++
+		}
+		b.ReportMetric(float64(evals)/float64(i), "evals/draw")
+	})
+	b.Run("find", func(b *testing.B) {
+		fopt := steady.DefaultOptions()
+		fopt.QuadRelTol = 1e-6
+		fopt.ThresholdBarriersOnly = true
+		fz, err := steady.NewFinder(fopt)
+		if err != nil {
+			b.Fatal(err)
+		}
+		f := m.Func(th)
+		i := 0
+		for b.Loop() {
+			copy(th, thetas[i&4095])
+			if _, err := fz.Find(f, m.Domain[0], m.Domain[1]); err != nil {
+				b.Fatal(err)
+			}
+			i++
+		}
+	})
 }

@@ -309,9 +309,10 @@ func (c *Checker) Certify(f Func, lo, hi float64) (*Report, error) {
 	// hard cluster cannot spend the budget before the rest of the domain
 	// is examined at the same scale.
 	c.deferred = append(c.deferred[:0], box{lo: lo, hi: hi, flo: c.point(lo), fhi: c.point(hi)})
-	for i, w := range passWidths {
+	passes := [...]float64{1e-4, 1e-6, 1e-8, 0} // fractions of the domain (common practice, no source)
+	for i, w := range passes {
 		c.deferW = w * c.width
-		last := i == len(passWidths)-1
+		last := i == len(passes)-1
 		// Swap the (distinct) backing arrays: this pass works through the
 		// boxes deferred so far and defers into the other array.
 		c.tops, c.deferred = c.deferred, c.tops[:0]
@@ -329,10 +330,6 @@ func (c *Checker) Certify(f Func, lo, hi float64) (*Report, error) {
 	}
 	return r, nil
 }
-
-// passWidths are the fractions of the domain below which boxes wait for
-// the next pass (common practice, no source); the last pass has none.
-var passWidths = [...]float64{1e-4, 1e-6, 1e-8, 0}
 
 // run processes the stack depth first, left half first, for at most
 // limit boxes; what is left waits for the next pass, or in the last pass
@@ -487,11 +484,14 @@ func (c *Checker) split(b box) (float64, expr.Interval, bool) {
 // the box: f > 0 when a lower bound of f on the box is positive, f < 0
 // when one of −f is.
 func (c *Checker) cleared(b box, df expr.Interval) bool {
-	w := up(b.hi - b.lo)
-	if lowerBound(b.flo.Lo, b.fhi.Lo, df, w) > 0 {
-		return true
+	// f > 0 on the box needs f > 0 at both ends, f < 0 likewise.
+	switch w := up(b.hi - b.lo); {
+	case b.flo.Lo > 0 && b.fhi.Lo > 0:
+		return lowerBound(b.flo.Lo, b.fhi.Lo, df, w) > 0
+	case b.flo.Hi < 0 && b.fhi.Hi < 0:
+		return lowerBound(-b.flo.Hi, -b.fhi.Hi, df.Neg(), w) > 0
 	}
-	return lowerBound(-b.flo.Hi, -b.fhi.Hi, df.Neg(), w) > 0
+	return false
 }
 
 // lowerBound returns a lower bound of a function g on [a, a + w] given
@@ -524,11 +524,36 @@ func lowerBound(a1, a2 float64, d expr.Interval, w float64) float64 {
 	return v
 }
 
-// dn and up return the floats just below and above x: bounds on the exact
-// result of the one operation that produced x in round-to-nearest (the
-// exact result lies within half a gap of it, also when subnormal).
-func dn(x float64) float64 { return math.Nextafter(x, math.Inf(-1)) }
-func up(x float64) float64 { return math.Nextafter(x, math.Inf(1)) }
+// dn and up return the floats just below and above x (math.Nextafter
+// toward ∓∞, written to be inlined): bounds on the exact result of the one
+// operation that produced x in round-to-nearest, which lies within half a
+// gap of it, also when subnormal. ±Inf and NaN stay as they are, except
+// that an overflowed +Inf goes down to MaxFloat64 (and −Inf up).
+func dn(x float64) float64 {
+	b := math.Float64bits(x)
+	switch {
+	case x > 0:
+		b--
+	case x < 0 && x >= -math.MaxFloat64:
+		b++
+	case x == 0:
+		return -0x1p-1074
+	}
+	return math.Float64frombits(b)
+}
+
+func up(x float64) float64 {
+	b := math.Float64bits(x)
+	switch {
+	case x < 0:
+		b--
+	case x > 0 && x <= math.MaxFloat64:
+		b++
+	case x == 0:
+		return 0x1p-1074
+	}
+	return math.Float64frombits(b)
+}
 
 // root records the root certified in b (f strictly monotone, opposite
 // signs at the ends) and narrows its enclosure.

@@ -3,6 +3,7 @@ package certify
 import (
 	"errors"
 	"math"
+	"strings"
 	"testing"
 
 	"holdfast/assess/expr"
@@ -351,6 +352,47 @@ func TestOptionsAndDomain(t *testing.T) {
 	for k := range 64 {
 		if inRoot(rep, float64(k)*math.Pi/20, 1e-12) < 0 {
 			t.Errorf("sin(20x): kπ/20 for k = %d not certified", k)
+		}
+	}
+}
+
+func TestDnUp(t *testing.T) {
+	for _, x := range []float64{1, -1, 0x1p-1074, -0x1p-1074, 0, math.MaxFloat64, -math.MaxFloat64, 3.7e-310, math.Pi} {
+		if got, want := dn(x), math.Nextafter(x, math.Inf(-1)); got != want {
+			t.Errorf("dn(%v) = %v, math.Nextafter %v", x, got, want)
+		}
+		if got, want := up(x), math.Nextafter(x, math.Inf(1)); got != want {
+			t.Errorf("up(%v) = %v, math.Nextafter %v", x, got, want)
+		}
+	}
+	if dn(math.Inf(1)) != math.MaxFloat64 || up(math.Inf(-1)) != -math.MaxFloat64 || !math.IsInf(dn(math.Inf(-1)), -1) {
+		t.Error("infinities")
+	}
+}
+
+func TestContinuum(t *testing.T) {
+	// f = min(0, x − 1) + max(0, x − 2) vanishes exactly on [1, 2] (a
+	// continuum of equilibria) and nowhere else: the certification leaves
+	// one unresolved interval around [1, 2] holding the scan's degenerate
+	// equilibrium, within a small budget.
+	l := newLaw(t, "min(0, x - 1) + max(0, x - 2)", nil)
+	rep, found := check(t, l, 0, 3.3)
+	if len(found) != 1 || found[0].Class != steady.Degenerate {
+		t.Fatalf("scan %+v", found)
+	}
+	if rep.Status != Unresolved || len(rep.Roots) != 0 || len(rep.Unresolved) != 1 {
+		t.Fatalf("roots %+v unresolved %+v", rep.Roots, rep.Unresolved)
+	}
+	b := rep.Unresolved[0]
+	if !(b.Lo <= 1 && b.Hi >= 2 && b.Lo > 0.99 && b.Hi < 2.01) || b.ScanHi-b.ScanLo != 1 || len(rep.Disagreements) != 0 {
+		t.Errorf("unresolved %+v, disagreements %+v", b, rep.Disagreements)
+	}
+	if rep.Boxes > 2000 {
+		t.Errorf("%d boxes for a continuum", rep.Boxes)
+	}
+	for _, s := range []string{Certified.String(), Unresolved.String(), (Multiple | Edge).String(), MissedByScan.String(), Approached.String()} {
+		if s == "" || strings.Contains(s, "(") {
+			t.Errorf("name %q", s)
 		}
 	}
 }

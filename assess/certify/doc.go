@@ -8,8 +8,8 @@
 // # Method
 //
 // Branch and prune over the domain (Moore, Interval Analysis, 1966; Hansen
-// & Walster, Global Optimization Using Interval Analysis, 2nd ed., 2004,
-// ch. 9; Neumaier, Interval Methods for Systems of Equations, 1990, ch. 5).
+// & Walster, Global Optimization Using Interval Analysis, 2nd ed., 2004;
+// Neumaier, Interval Methods for Systems of Equations, 1990).
 // Each box X = [a, b] carries enclosures F(a), F(b) of f at its ends. A box
 // is
 //
@@ -17,8 +17,8 @@
 //     mean value form excludes it: with F'(X) = [d, D] and the end values,
 //     f(x) ≥ max(F(a)⁻ + d(x − a), F(b)⁻ − D(b − x)) on X, whose minimum
 //     is bounded below by a convex combination of the two lines in which
-//     x cancels (a mean value form centred at both ends; Neumaier 1990,
-//     §2.3, for centred forms);
+//     x cancels (a mean value form centred at both ends; Neumaier 1990
+//     for centred forms);
 //   - certified to hold exactly one root when f is continuous on X,
 //     0 ∉ F'(X) (f strictly monotone, so at most one root) and F(a), F(b)
 //     have strictly opposite signs (at least one root, by the intermediate
@@ -32,7 +32,20 @@
 //     Herzberger, Introduction to Interval Computations, 1983, ch. 7);
 //   - otherwise bisected, at a point near the middle where the enclosure
 //     of f excludes 0 when there is one, until it is narrower than
-//     Options.MinWidth.
+//     Options.MinWidth, or f is within a few times its rounding error of
+//     0 at both ends and at the split point (there rounding hides the
+//     sign of f, and halving further would only multiply boxes). The
+//     halves first try the mean value form with the parent's enclosure of
+//     f', which often clears them without an evaluation.
+//
+// Boxes are examined depth first, in passes by scale (a box to be split
+// below 1e-4, 1e-6, 1e-8 of the domain waits for the next pass, where each
+// waiting box gets an equal share of the remaining Options.MaxBoxes), so
+// that a hard cluster cannot spend the budget before the rest of the
+// domain has been examined at the same scale. Enclosures of f come from
+// Machine.Interval at points and Machine.IntervalSlope over boxes
+// (assess/expr), whose rules for saturating terms k·u/(c + u) keep the
+// usual rate laws' boxes few.
 //
 // What remains is reported, adjacent boxes merged, as unresolved: a small
 // interval that may hold a multiple root (f and f' both vanish there, the

@@ -8,9 +8,9 @@ import (
 )
 
 // The Dormand–Prince 5(4) pair (Dormand & Prince, "A family of embedded
-// Runge–Kutta formulae", J. Comput. Appl. Math. 6:19, 1980; Table 5.2 of
-// Hairer, Nørsett & Wanner, Solving Ordinary Differential Equations I, 2nd
-// ed., 1993): seven stages, the last evaluated at the new point and reused
+// Runge–Kutta formulae", J. Comput. Appl. Math. 6:19, 1980; Hairer,
+// Nørsett & Wanner, Solving Ordinary Differential Equations I, 2nd ed.,
+// 1993, §II.5): seven stages, the last evaluated at the new point and reused
 // as the first of the next step (FSAL); the fifth-order solution is
 // propagated and the difference from the embedded fourth-order one
 // estimates the local error. The coefficients were recalled (from memory)

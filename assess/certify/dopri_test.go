@@ -10,7 +10,7 @@ import (
 func TestDormandPrinceOrderConditions(t *testing.T) {
 	// The coefficients were recalled (from memory); check them against
 	// the Runge–Kutta order conditions (Butcher; Hairer, Nørsett & Wanner,
-	// Solving ODEs I, §II.2, Table 2.2): row sums Σ_j a_ij = c_i; for the
+	// Solving ODEs I, §II.2): row sums Σ_j a_ij = c_i; for the
 	// fifth-order weights the conditions of the trees up to order 5 used
 	// below, for the embedded weights those up to order 4.
 	const tol = 1e-14

@@ -55,11 +55,17 @@
 //     differentiation, cost independent of the number of parameters.
 //   - Diagnose: a checked re-evaluation of the syntax trees that names the
 //     operation where a non-finite f arose.
+//   - Interval and IntervalSlope: interval arithmetic with outward
+//     rounding (Moore 1966), enclosing f, and with interval dual numbers
+//     f', over a whole box of x (interval.go, intervaleval.go), with
+//     monotone pieces for the functions, a monotonicity rule for
+//     saturating terms k·u/(c + u) and a record of whether f is continuous
+//     on the box; package certify builds proofs on them.
 //
 // The function run is the single definition of the float semantics of each
 // instruction (constant folding uses it too), and walk visits a syntax
-// tree; a further back end (such as interval arithmetic with outward
-// rounding) adds one rule per opcode or one case per node.
+// tree; a further back end adds one rule per opcode or one case per node,
+// as the interval back end does.
 //
 // A Program is immutable and may be shared; each goroutine evaluates it
 // through its own Machine.

@@ -173,6 +173,29 @@ func sUp(s float64) float64 {
 	return nextUp(s)
 }
 
+// addDn and addUp bound a + b from below and above with the rounding error
+// of s = fl(a + b), computed exactly by TwoSum (Knuth, TAOCP vol. 2,
+// §4.2.2): when the exact sum is at or above s, s itself is a lower bound,
+// and an exact sum stays exact. Overflow (a NaN error) falls back to
+// stepping outward.
+func addDn(a, b float64) float64 {
+	s := a + b
+	bb := s - a
+	if e := (a - (s - bb)) + (b - bb); e >= 0 {
+		return s
+	}
+	return sDn(s)
+}
+
+func addUp(a, b float64) float64 {
+	s := a + b
+	bb := s - a
+	if e := (a - (s - bb)) + (b - bb); e <= 0 {
+		return s
+	}
+	return sUp(s)
+}
+
 // pDn and pUp bound x·y from below and above (x, y not NaN); a zero
 // factor gives an exact 0, also against an infinite bound.
 func pDn(x, y float64) float64 {
@@ -237,11 +260,11 @@ func widenUp(v, e float64) float64 {
 }
 
 func ivAdd(a, b Interval) Interval {
-	return Interval{sDn(a.Lo + b.Lo), sUp(a.Hi + b.Hi)}
+	return Interval{addDn(a.Lo, b.Lo), addUp(a.Hi, b.Hi)}
 }
 
 func ivSub(a, b Interval) Interval {
-	return Interval{sDn(a.Lo - b.Hi), sUp(a.Hi - b.Lo)}
+	return Interval{addDn(a.Lo, -b.Hi), addUp(a.Hi, -b.Lo)}
 }
 
 // ivScale returns s·b for a real s.
@@ -477,17 +500,17 @@ func ivSinCos(a Interval, isCos bool) Interval {
 	if !(a.Hi-a.Lo < 2*math.Pi) || math.IsInf(a.Lo, 0) || math.IsInf(a.Hi, 0) {
 		return Interval{-1, 1}
 	}
-	g, phiMax, phiMin := math.Sin, math.Pi/2, -math.Pi/2
+	g, g0, phiMax, phiMin := math.Sin, 0.0, math.Pi/2, -math.Pi/2
 	if isCos {
-		g, phiMax, phiMin = math.Cos, 0, math.Pi
+		g, g0, phiMax, phiMin = math.Cos, 1, 0, math.Pi
 	}
 	vl, vh := g(a.Lo), g(a.Hi)
 	el, eh := lib(vl, 5)+trigReduce(a.Lo), lib(vh, 5)+trigReduce(a.Hi)
 	if a.Lo == 0 { // sin 0 = 0 and cos 0 = 1 exactly
-		el = 0
+		vl, el = g0, 0
 	}
 	if a.Hi == 0 {
-		eh = 0
+		vh, eh = g0, 0
 	}
 	w := Interval{
 		math.Min(widenDn0(vl, el), widenDn0(vh, eh)),

@@ -195,6 +195,12 @@ func TestIntervalSpecialCases(t *testing.T) {
 	if f := m.Interval(Point(0), []float64{0.7, 3.1}); f != (Interval{}) {
 		t.Errorf("logistic at 0: %v, want exactly [0, 0]", f)
 	}
+	// Exact values at 0 (and log at 1) stay exact: sin 0 = tan 0 = sinh 0 =
+	// tanh 0 = atan 0 = log 1 = 0, cos 0 = cosh 0 = exp 0 = 1.
+	m = mustCompile(t, "sin(x) + tan(x) + sinh(x) + tanh(x) + atan(x) + log(x + 1) + cos(x) + cosh(x) + exp(x) - 3", Env{State: "x"}).NewMachine()
+	if f := m.Interval(Point(0), nil); f != (Interval{}) {
+		t.Errorf("exact values at 0: %v, want exactly [0, 0]", f)
+	}
 	// Undefined everywhere on the box: empty.
 	m = mustCompile(t, "log(x) + 1", Env{State: "x"}).NewMachine()
 	if f := m.Interval(Interval{-2, -1}, nil); !f.IsEmpty() {

@@ -9,11 +9,11 @@ import (
 // (interval.go). IntervalSlope carries with each value an enclosure of its
 // derivative in x over the box: interval dual numbers, the first-order
 // case of the Taylor arithmetic's recurrences (taylor.go) taken over
-// intervals, with the chain rule applied to the enclosures (Moore 1966,
-// §6; Neumaier, Interval Methods for Systems of Equations, 1990, §2.3).
+// intervals, with the chain rule applied to the enclosures (Moore 1966;
+// Neumaier, Interval Methods for Systems of Equations, 1990).
 // For abs, min and max, which are Lipschitz but not differentiable, the
 // derivative enclosure holds Clarke's generalised gradient (Clarke,
-// Optimization and Nonsmooth Analysis, 1983, §2.3), for which the mean
+// Optimization and Nonsmooth Analysis, 1983), for which the mean
 // value inclusion f(y) − f(x) ∈ F'(X)(y − x) still holds (Lebourg's mean
 // value theorem).
 
@@ -441,8 +441,7 @@ func (pc *powCache) powPos(a Interval, y float64, deriv bool) (w, gp Interval, o
 // −u/(u + c)², minus the sign of u) wherever c and u keep their signs and
 // u + c ≠ 0, so its range over U × C is the hull of its values at the four
 // corners (elementary calculus; the monotonicity test of Hansen & Walster,
-// Global Optimization Using Interval Analysis, 2004, §9.5, applied to one
-// node). The derivative k·(c·u' − u·c')/(u + c)² has each factor once.
+// Global Optimization Using Interval Analysis, 2004, applied to one node). The derivative k·(c·u' − u·c')/(u + c)² has each factor once.
 
 // satTerm marks a division instruction of the form k·u/(c + u) or
 // u/(c + u) (either order of the sum, k independent of x): the registers
