@@ -181,13 +181,7 @@ the estimate; the exit status is 3 when one is not met.`,
 				}
 			}
 			if reports != nil {
-				// Render from the result as a file holds it, so that
-				// holdfast report gives the same bytes from --out.
-				saved, err := report.LoadResult(raw.Bytes())
-				if err != nil {
-					return failed(fmt.Errorf("reading back the result: %w", err))
-				}
-				if err := reports.Write(saved); err != nil {
+				if err := renderReports(reports, raw.Bytes()); err != nil {
 					return failed(err)
 				}
 			}

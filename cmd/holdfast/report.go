@@ -218,3 +218,14 @@ func commandLine(cmd *cobra.Command, args []string) []string {
 	}
 	return words
 }
+
+// renderReports renders the staged reports from a result's JSON bytes as a
+// file holds them (read back through report.LoadResult), so that holdfast
+// report gives the same bytes later from the saved --out file.
+func renderReports(reports *report.Reports, raw []byte) error {
+	saved, err := report.LoadResult(raw)
+	if err != nil {
+		return fmt.Errorf("reading back the result: %w", err)
+	}
+	return reports.Write(saved)
+}

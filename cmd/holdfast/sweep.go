@@ -107,13 +107,7 @@ writes the report at once.`,
 				return failed(err)
 			}
 			if reports != nil {
-				// Render from the result as a file holds it, so that
-				// holdfast report gives the same bytes from --out.
-				saved, err := report.LoadResult(raw.Bytes())
-				if err != nil {
-					return failed(fmt.Errorf("reading back the result: %w", err))
-				}
-				if err := reports.Write(saved); err != nil {
+				if err := renderReports(reports, raw.Bytes()); err != nil {
 					return failed(err)
 				}
 				if !quiet {
