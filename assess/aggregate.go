@@ -2,6 +2,7 @@ package assess
 
 import (
 	"cmp"
+	"fmt"
 	"math"
 	"slices"
 	"strings"
@@ -19,6 +20,7 @@ type aggregate struct {
 	failed     map[string]*counted
 	faults     map[string]*counted
 	warned     int64 // draws whose search raised a warning
+	faulted    int64 // draws with numeric trouble (poles, undefined stretches)
 	scanMissed int64 // tracked roots the scan did not report
 	untracked  int64 // draws with an equilibrium not followed from nominal
 	regimes    map[uint64]int64
@@ -182,6 +184,7 @@ func escapeBarrier(e *steady.Equilibrium) float64 {
 func (a *aggregate) merge(o *aggregate) {
 	a.n += o.n
 	a.warned += o.warned
+	a.faulted += o.faulted
 	a.scanMissed += o.scanMissed
 	a.untracked += o.untracked
 	mergeCounted(a.failed, o.failed)
@@ -334,7 +337,11 @@ type Result struct {
 	// ScanMissed counts tracked equilibria that continuation found and the
 	// scan did not; Warned counts draws whose search raised a warning.
 	ScanMissed, Warned int64
-	Warnings           []string
+	// Faulted counts the successful draws that met numeric trouble (a
+	// pole or an undefined stretch of the rate law); Faults lists the
+	// troubles by reason.
+	Faulted  int64
+	Warnings []string
 }
 
 func (a *aggregate) finish(m *Model, nominal *Snapshot, opt Options, draws int, conv Convergence) *Result {
@@ -348,6 +355,7 @@ func (a *aggregate) finish(m *Model, nominal *Snapshot, opt Options, draws int, 
 		Untracked:   prob(a.untracked, a.n),
 		ScanMissed:  a.scanMissed,
 		Warned:      a.warned,
+		Faulted:     a.faulted,
 		Convergence: conv,
 	}
 	r.Convergence.MaxHalfWidth = a.maxHalfWidth()
@@ -397,6 +405,9 @@ func (a *aggregate) finish(m *Model, nominal *Snapshot, opt Options, draws int, 
 	}
 	if failed > 0 && float64(failed) > 0.001*float64(draws) {
 		r.Warnings = append(r.Warnings, "more than 0.1% of draws failed; see the failure list")
+	}
+	if a.faulted > 0 && float64(a.faulted) > 0.001*float64(draws) {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%d draws (%.2g%%, more than 0.1%%) met numeric trouble in the rate law; see the list of faults", a.faulted, 100*float64(a.faulted)/float64(draws)))
 	}
 	if a.scanMissed > 0 {
 		r.Warnings = append(r.Warnings, "the equilibrium scan missed roots that continuation found; they are counted with their slope as verdict")

@@ -16,13 +16,21 @@ import (
 // Merging the partials of every shard gives the same Result as one run
 // over all draws, whatever the order of merging.
 type Partial struct {
-	// Draws is the number of draws this partial covers.
+	// Draws is the number of draws this partial covers: the shard's first
+	// Draws draws.
 	Draws int
 	// Shard and Shards say which draws: those with index i mod Shards =
 	// Shard (Shards = 1 for a whole run).
 	Shard, Shards int
-	agg           *aggregate
+	// Planned is the number of the shard's draws planned when the state
+	// was taken (Draws for a finished shard; more in a checkpoint), and
+	// Batches the number of finished batches (see UntilHalfWidth).
+	Planned, Batches int
+	agg              *aggregate
 }
+
+// Complete reports whether the partial covers every draw it planned.
+func (p *Partial) Complete() bool { return p.Draws == p.Planned }
 
 // Shard selects the draws of one shard of a run: those whose index i
 // satisfies i mod N = K.
@@ -46,10 +54,11 @@ func RunPartial(ctx context.Context, m *Model, opt Options) (*Partial, error) {
 		return nil, err
 	}
 	n := shardSize(opt.Draws, sh)
-	if err := e.batch(ctx, 0, n, opt, sh); err != nil {
+	done, conv, err := e.run(ctx, opt, sh, n, n)
+	if err != nil {
 		return nil, err
 	}
-	return &Partial{Draws: n, Shard: sh.K, Shards: sh.N, agg: e.total}, nil
+	return &Partial{Draws: done, Planned: done, Batches: conv.Batches, Shard: sh.K, Shards: sh.N, agg: e.total}, nil
 }
 
 // shardSize is the number of draws i < draws with i mod N = K.
@@ -78,6 +87,9 @@ func Merge(m *Model, opt Options, parts []*Partial) (*Result, error) {
 			return nil, fmt.Errorf("merge: shard %d/%d given twice", p.Shard, n)
 		}
 		seen[p.Shard] = true
+		if !p.Complete() {
+			return nil, fmt.Errorf("merge: shard %d/%d is a checkpoint (%d of %d draws), not a finished shard", p.Shard, n, p.Draws, p.Planned)
+		}
 		if want := shardSize(opt.Draws, Shard{p.Shard, n}); p.Draws != want {
 			return nil, fmt.Errorf("merge: shard %d/%d covers %d draws, want %d of %d", p.Shard, n, p.Draws, want, opt.Draws)
 		}
@@ -126,10 +138,13 @@ type trackedAggJSON struct {
 
 type partialJSON struct {
 	Draws      int              `json:"draws"`
+	Planned    int              `json:"planned"`
+	Batches    int              `json:"batches"`
 	Shard      int              `json:"shard"`
 	Shards     int              `json:"shards"`
 	N          int64            `json:"assessed"`
 	Warned     int64            `json:"warned"`
+	Faulted    int64            `json:"faulted"`
 	ScanMissed int64            `json:"scan_missed"`
 	Untracked  int64            `json:"untracked"`
 	Failed     []countedJSON    `json:"failed"`
@@ -153,8 +168,8 @@ func countedList(m map[string]*counted) []countedJSON {
 func (p *Partial) MarshalJSON() ([]byte, error) {
 	a := p.agg
 	j := partialJSON{
-		Draws: p.Draws, Shard: p.Shard, Shards: p.Shards,
-		N: a.n, Warned: a.warned, ScanMissed: a.scanMissed, Untracked: a.untracked,
+		Draws: p.Draws, Planned: p.Planned, Batches: p.Batches, Shard: p.Shard, Shards: p.Shards,
+		N: a.n, Warned: a.warned, Faulted: a.faulted, ScanMissed: a.scanMissed, Untracked: a.untracked,
 		Failed: countedList(a.failed), Faults: countedList(a.faults),
 		Regimes: [][2]uint64{}, Outcomes: a.outcomes,
 	}
@@ -174,11 +189,12 @@ func (p *Partial) UnmarshalJSON(b []byte) error {
 	if err := json.Unmarshal(b, &j); err != nil {
 		return err
 	}
-	if j.Shards < 1 || j.Shard < 0 || j.Shard >= j.Shards || j.Draws < 0 || j.N < 0 || j.N > int64(j.Draws) {
+	if j.Shards < 1 || j.Shard < 0 || j.Shard >= j.Shards || j.Draws < 0 || j.Planned < j.Draws || j.Planned > MaxDraws ||
+		j.Batches < 0 || j.N < 0 || j.N > int64(j.Draws) || j.Warned < 0 || j.Warned > j.N || j.Faulted < 0 || j.Faulted > j.N {
 		return errors.New("partial: inconsistent shard or draw counts")
 	}
 	a := newAggregate(len(j.Tracked))
-	a.n, a.warned, a.scanMissed, a.untracked = j.N, j.Warned, j.ScanMissed, j.Untracked
+	a.n, a.warned, a.faulted, a.scanMissed, a.untracked = j.N, j.Warned, j.Faulted, j.ScanMissed, j.Untracked
 	for _, c := range j.Failed {
 		a.failed[c.Reason] = &counted{n: c.N, first: c.First}
 	}
@@ -206,6 +222,6 @@ func (p *Partial) UnmarshalJSON(b []byte) error {
 		return errors.New("partial: outcome list of the wrong length")
 	}
 	copy(a.outcomes, j.Outcomes)
-	*p = Partial{Draws: j.Draws, Shard: j.Shard, Shards: j.Shards, agg: a}
+	*p = Partial{Draws: j.Draws, Planned: j.Planned, Batches: j.Batches, Shard: j.Shard, Shards: j.Shards, agg: a}
 	return nil
 }

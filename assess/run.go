@@ -9,6 +9,7 @@ import (
 	"slices"
 	"sync"
 	"sync/atomic"
+	"time"
 
 	"holdfast/assess/steady"
 	"holdfast/sample"
@@ -52,6 +53,19 @@ type Options struct {
 	Extra func() func(f *Func, rec *Draw)
 	// Shard restricts RunPartial to the draws i with i mod N = K.
 	Shard Shard
+	// Checkpoint, when set, is called from the run's goroutine between
+	// chunks of draws, at most once per CheckpointEvery (default
+	// DefaultCheckpointEvery), with the run's state so far. Every Sink has
+	// then received exactly the draws the state covers, so the caller can
+	// save its own collectors beside it. The Partial is valid only during
+	// the call (encode it there).
+	Checkpoint      func(p *Partial) error
+	CheckpointEvery time.Duration
+	// Resume, when set, continues a run (or a shard, with the same Shard)
+	// from a state handed to Checkpoint: the draws it covers are not run
+	// again, and the result is the one an uninterrupted run gives. Sinks
+	// must be restored to the same point by the caller.
+	Resume *Partial
 }
 
 // Limits on a run.
@@ -132,13 +146,65 @@ func Run(ctx context.Context, m *Model, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	done, end := 0, opt.Draws
+	done, conv, err := e.run(ctx, opt, Shard{0, 1}, opt.Draws, maxDraws)
+	if err != nil {
+		return nil, err
+	}
+	return e.total.finish(m, e.nominal, opt, done, conv), nil
+}
+
+// DefaultCheckpointEvery is the least time between two calls of
+// Options.Checkpoint when CheckpointEvery is zero.
+const DefaultCheckpointEvery = 5 * time.Second
+
+// run assesses the shard's draws, n of them at first (local indices
+// 0..n−1, global index K + j·N), continuing a resumed state, in batches
+// doubling up to maxDraws while a half-width target is set and not met.
+// With a Checkpoint function the batches are cut into chunks, and the
+// state after a chunk is handed to it when CheckpointEvery has passed.
+func (e *engine) run(ctx context.Context, opt Options, sh Shard, n, maxDraws int) (int, Convergence, error) {
+	done, end := 0, n
 	conv := Convergence{Target: opt.UntilHalfWidth}
-	for {
-		if err := e.batch(ctx, done, end, opt, Shard{0, 1}); err != nil {
-			return nil, err
+	if r := opt.Resume; r != nil {
+		if r.Shard != sh.K || r.Shards != sh.N {
+			return 0, conv, fmt.Errorf("resume: the saved state is of shard %d/%d, the run of shard %d/%d", r.Shard, r.Shards, sh.K, sh.N)
 		}
-		done = end
+		if len(r.agg.tracked) != len(e.nominal.Equilibria) {
+			return 0, conv, fmt.Errorf("resume: the saved state tracks %d equilibria, the scenario %d", len(r.agg.tracked), len(e.nominal.Equilibria))
+		}
+		if r.Draws < 0 || r.Draws > r.Planned || r.Planned > maxDraws || (opt.UntilHalfWidth == 0 && r.Planned != n) {
+			return 0, conv, fmt.Errorf("resume: the saved state covers %d of %d draws, which does not fit this run", r.Draws, r.Planned)
+		}
+		e.total.merge(r.agg)
+		done, end, conv.Batches = r.Draws, r.Planned, r.Batches
+		if r.Complete() && conv.Batches > 0 {
+			conv.Batches-- // its last batch is counted again below
+		}
+	}
+	chunk := end
+	every := opt.CheckpointEvery
+	if opt.Checkpoint != nil {
+		chunk = max(1<<15, 4*blockSize*len(e.ws))
+		if every <= 0 {
+			every = DefaultCheckpointEvery
+		}
+	}
+	last := time.Now()
+	for {
+		for done < end {
+			to := min(end, done+chunk)
+			if err := e.batch(ctx, done, to, end, opt, sh); err != nil {
+				return 0, conv, err
+			}
+			done = to
+			if opt.Checkpoint != nil && done < end && time.Since(last) >= every {
+				p := &Partial{Draws: done, Planned: end, Batches: conv.Batches, Shard: sh.K, Shards: sh.N, agg: e.total}
+				if err := opt.Checkpoint(p); err != nil {
+					return 0, conv, fmt.Errorf("checkpoint: %w", err)
+				}
+				last = time.Now()
+			}
+		}
 		conv.Batches++
 		if opt.UntilHalfWidth == 0 {
 			break
@@ -153,7 +219,7 @@ func Run(ctx context.Context, m *Model, opt Options) (*Result, error) {
 		}
 		end = min(2*done, maxDraws)
 	}
-	return e.total.finish(m, e.nominal, opt, done, conv), nil
+	return done, conv, nil
 }
 
 // engine is a pool of workers over one model with the running total.
@@ -194,11 +260,11 @@ func newEngine(m *Model, opt Options) (*engine, error) {
 }
 
 // batch assesses the shard's draws of local index [from, to) and adds
-// them to the total. Worker aggregates hold only integer counts and
-// order-free sketches, so the total does not depend on which worker took
-// which draw.
-func (e *engine) batch(ctx context.Context, from, to int, opt Options, sh Shard) error {
-	if err := runBatch(ctx, e.ws, from, to, opt, sh); err != nil {
+// them to the total; planned is the number of draws planned so far, for
+// progress. Worker aggregates hold only integer counts and order-free
+// sketches, so the total does not depend on which worker took which draw.
+func (e *engine) batch(ctx context.Context, from, to, planned int, opt Options, sh Shard) error {
+	if err := runBatch(ctx, e.ws, from, to, planned, opt, sh); err != nil {
 		return err
 	}
 	for _, w := range e.ws {
@@ -211,7 +277,7 @@ func (e *engine) batch(ctx context.Context, from, to int, opt Options, sh Shard)
 // runBatch assesses the shard's draws of local index [from, to) (global
 // index i = K + j·N) on the workers, block by block, and feeds the sink in
 // draw order.
-func runBatch(ctx context.Context, ws []*worker, from, to int, opt Options, sh Shard) error {
+func runBatch(ctx context.Context, ws []*worker, from, to, planned int, opt Options, sh Shard) error {
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
 	nBlocks := (to - from + blockSize - 1) / blockSize
@@ -274,7 +340,7 @@ func runBatch(ctx context.Context, ws []*worker, from, to int, opt Options, sh S
 	for r := range results {
 		doneDraws += min(blockSize, to-(from+r.b*blockSize))
 		if opt.Progress != nil {
-			opt.Progress(doneDraws, to)
+			opt.Progress(doneDraws, planned)
 		}
 		if opt.Sink == nil || firstErr != nil {
 			if r.recs != nil {
@@ -401,6 +467,9 @@ func (w *worker) draw(i int, rec *Draw) {
 	}
 	for _, p := range res.Poles {
 		a.fault(faultReason(w.f, p), i)
+	}
+	if len(res.Undefined)+len(res.Poles) > 0 {
+		a.faulted++
 	}
 	if len(res.Warnings) > 0 {
 		a.warned++
