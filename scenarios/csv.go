@@ -73,6 +73,10 @@ func (p *parser) readColumn(b *spec, par *Param) ([]float64, bool) {
 		return bad("%s", tooBig("CSV file "+clean))
 	}
 	par.DataFile, par.DataColumn = clean, column
+	if p.attached == nil {
+		p.attached = map[string][]byte{}
+	}
+	p.attached[clean] = data
 	return p.parseColumn(p.csvName(clean), data, column, b)
 }
 

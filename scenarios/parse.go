@@ -31,6 +31,14 @@ const MaxFileSize = 1 << 20
 // parameters) far above any real need.
 const MaxCorrelations = 200
 
+// MaxParams and MaxDefines are the most parameters and named
+// sub-expressions a scenario may give: far above any real need, they bound
+// the per-draw work and memory a file can ask for.
+const (
+	MaxParams  = 500
+	MaxDefines = 500
+)
+
 // DemoPrefix marks an embedded demo in a path given to Load: "demo:lake".
 const DemoPrefix = "demo:"
 
@@ -86,15 +94,17 @@ func Parse(file string, data []byte, dir fs.FS) (*Scenario, error) {
 	if err := p.errs.err(); err != nil {
 		return nil, err
 	}
+	s.Attached = p.attached
 	return s, nil
 }
 
 // parser holds the state of one Parse call.
 type parser struct {
-	file string
-	dir  fs.FS
-	ix   *srcIndex
-	errs errorSink
+	file     string
+	dir      fs.FS
+	ix       *srcIndex
+	errs     errorSink
+	attached map[string][]byte // CSV files read, by clean name
 }
 
 func (p *parser) errorf(n *yaml.Node, field, format string, args ...any) {
@@ -629,6 +639,10 @@ func (p *parser) defines(n *yaml.Node, s *Scenario) {
 	if !ok {
 		return
 	}
+	if len(pairs) > MaxDefines {
+		p.errorf(n, "define", "%d named expressions, more than the limit of %d", len(pairs), MaxDefines)
+		return
+	}
 	for _, f := range pairs {
 		path := join("define", f.name)
 		if msg := checkName(f.name); msg != "" {
@@ -654,6 +668,10 @@ func (p *parser) defines(n *yaml.Node, s *Scenario) {
 func (p *parser) params(n *yaml.Node, s *Scenario) {
 	pairs, ok := p.mapping(n, "parameters", " of name: spec, such as {K: {value: 100}}")
 	if !ok {
+		return
+	}
+	if len(pairs) > MaxParams {
+		p.errorf(n, "parameters", "%d parameters, more than the limit of %d", len(pairs), MaxParams)
 		return
 	}
 	for _, f := range pairs {

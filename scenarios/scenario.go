@@ -29,6 +29,12 @@ type Scenario struct {
 	Defines      []Define      // named sub-expressions, in file order
 	Params       []Param       // parameters, in file order
 	Correlations []Correlation // rank correlations between uncertain parameters
+
+	// Attached holds the exact bytes of every CSV file the scenario read,
+	// by its name relative to the scenario's folder (nil when none), so
+	// that the scenario can be parsed again from Source without the folder
+	// (fstest.MapFS or any fs.FS over these files).
+	Attached map[string][]byte
 }
 
 // State describes the state variable x.
