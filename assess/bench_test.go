@@ -4,7 +4,6 @@ import (
 	"context"
 	"math"
 	"sync"
-	"syscall"
 	"testing"
 	"time"
 
@@ -168,23 +167,6 @@ func BenchmarkNativeLake(b *testing.B) {
 		nativeLake(d, benchDraws, 2)
 	}
 	b.ReportMetric(float64(benchDraws*b.N)/b.Elapsed().Seconds(), "draws/s")
-}
-
-// BenchmarkMillionDrawsMemory runs 1,000,000 lake draws with no draws kept
-// and reports the process's peak resident memory (target: under 100 MB).
-// Run it alone: go test -run '^$' -bench MillionDraws -benchtime 1x ./assess
-func BenchmarkMillionDrawsMemory(b *testing.B) {
-	m := lakeModel(b)
-	for b.Loop() {
-		if _, err := Run(context.Background(), m, Options{Draws: 1_000_000, Seed: 1, Plan: sample.LHS, Workers: 2}); err != nil {
-			b.Fatal(err)
-		}
-	}
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err == nil {
-		b.ReportMetric(float64(ru.Maxrss)/1024, "peak-RSS-MB") // Linux reports KiB
-	}
-	b.ReportMetric(float64(1_000_000*b.N)/b.Elapsed().Seconds(), "draws/s")
 }
 
 // BenchmarkLakeEngineVsNative times the engine and the native reference
