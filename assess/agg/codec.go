@@ -14,7 +14,7 @@ type sketchJSON struct {
 	Zero  int64      `json:"zero"`
 	Min   *float64   `json:"min"`
 	Max   *float64   `json:"max"`
-	Sum   float64    `json:"sum"`
+	Sum   jsonFloat  `json:"sum"`
 	Pos   [][2]int64 `json:"pos"`
 	Neg   [][2]int64 `json:"neg"`
 }
@@ -31,7 +31,7 @@ func (st *store) sparse() [][2]int64 {
 
 // MarshalJSON writes the sketch's exact state.
 func (s *Sketch) MarshalJSON() ([]byte, error) {
-	j := sketchJSON{Count: s.count, Zero: s.zero, Sum: s.sum, Pos: s.pos.sparse(), Neg: s.neg.sparse()}
+	j := sketchJSON{Count: s.count, Zero: s.zero, Sum: jsonFloat(s.sum), Pos: s.pos.sparse(), Neg: s.neg.sparse()}
 	if s.count > 0 {
 		j.Min, j.Max = &s.min, &s.max
 	}
@@ -68,12 +68,48 @@ func (s *Sketch) UnmarshalJSON(b []byte) error {
 	if total+j.Zero != j.Count {
 		return fmt.Errorf("sketch: bucket counts add to %d, count says %d", total+j.Zero, j.Count)
 	}
-	s.count, s.zero, s.sum = j.Count, j.Zero, j.Sum
+	s.count, s.zero, s.sum = j.Count, j.Zero, float64(j.Sum)
 	if j.Count > 0 {
 		if j.Min == nil || j.Max == nil || *j.Min > *j.Max {
 			return fmt.Errorf("sketch: min and max missing or reversed")
 		}
 		s.min, s.max = *j.Min, *j.Max
+	}
+	return nil
+}
+
+// jsonFloat is a float64 that JSON can hold when it is not finite: a
+// number when finite, else the string "+Inf", "-Inf" or "NaN" (a sum of
+// values near the float64 limit can overflow).
+type jsonFloat float64
+
+func (f jsonFloat) MarshalJSON() ([]byte, error) {
+	v := float64(f)
+	switch {
+	case math.IsNaN(v):
+		return []byte(`"NaN"`), nil
+	case math.IsInf(v, 1):
+		return []byte(`"+Inf"`), nil
+	case math.IsInf(v, -1):
+		return []byte(`"-Inf"`), nil
+	}
+	return json.Marshal(v)
+}
+
+func (f *jsonFloat) UnmarshalJSON(b []byte) error {
+	switch string(b) {
+	case `"NaN"`:
+		*f = jsonFloat(math.NaN())
+	case `"+Inf"`:
+		*f = jsonFloat(math.Inf(1))
+	case `"-Inf"`:
+		*f = jsonFloat(math.Inf(-1))
+	default:
+		var v float64
+		if err := json.Unmarshal(b, &v); err != nil {
+			return fmt.Errorf("sketch: sum %s is not a number", b)
+		}
+		*f = jsonFloat(v)
 	}
 	return nil
 }

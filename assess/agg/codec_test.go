@@ -45,3 +45,23 @@ func TestSketchRoundTripMergesExactly(t *testing.T) {
 		}
 	}
 }
+
+func TestSketchJSONWithOverflowingSum(t *testing.T) {
+	// A sum of values near the float64 limit overflows to +Inf (IEEE 754);
+	// the stored form must still round-trip (common practice, no source).
+	s := NewSketch()
+	s.Add(math.MaxFloat64)
+	s.Add(math.MaxFloat64)
+	raw, err := json.Marshal(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var back Sketch
+	if err := json.Unmarshal(raw, &back); err != nil {
+		t.Fatal(err)
+	}
+	again, _ := json.Marshal(&back)
+	if string(raw) != string(again) {
+		t.Errorf("round trip changed the sketch:\n%s\n%s", raw, again)
+	}
+}

@@ -262,3 +262,32 @@ func (st *store) bucketAtRank(r int64) int {
 	}
 	return st.offset + len(st.counts) - 1
 }
+
+// Buckets calls fn for every non-empty bucket in ascending order of value,
+// with the bucket's representative value and its count: the negative
+// buckets from the largest magnitude down, the zero bucket, then the
+// positive buckets. Each representative is the value Quantile(q) reports,
+// for 0 < q < 1, at a rank in that bucket: within relative error Alpha of
+// every value the bucket holds (unless buckets were folded together at
+// the MaxBuckets bound), clamped to the exact [min, max]. The values are
+// non-decreasing and the counts add up to Count. Buckets does not change
+// the sketch.
+func (s *Sketch) Buckets(fn func(value float64, count int64)) {
+	if s.count == 0 {
+		return
+	}
+	clamp := func(v float64) float64 { return math.Min(math.Max(v, s.min), s.max) }
+	for j := len(s.neg.counts) - 1; j >= 0; j-- {
+		if c := s.neg.counts[j]; c != 0 {
+			fn(clamp(-s.value(s.neg.offset+j)), c)
+		}
+	}
+	if s.zero != 0 {
+		fn(clamp(0), s.zero)
+	}
+	for j, c := range s.pos.counts {
+		if c != 0 {
+			fn(clamp(s.value(s.pos.offset+j)), c)
+		}
+	}
+}

@@ -85,3 +85,51 @@ func TestSketchFoldingKeepsUpperQuantiles(t *testing.T) {
 		t.Errorf("NaN/Inf must be refused")
 	}
 }
+
+func TestSketchBuckets(t *testing.T) {
+	// Walking the buckets in order reproduces the sorted stream within the
+	// relative error α of Masson, Rim & Lee (2019), Theorem 1, at every
+	// rank (the exact order statistics come from sort.Float64s), and agrees
+	// with Quantile.
+	rng := rand.New(rand.NewPCG(5, 6))
+	s := NewSketch()
+	vals := make([]float64, 5000)
+	for i := range vals {
+		switch rng.IntN(6) {
+		case 0:
+			vals[i] = 0
+		case 1:
+			vals[i] = -math.Exp(rng.NormFloat64() * 3)
+		default:
+			vals[i] = math.Exp(rng.NormFloat64() * 3)
+		}
+		s.Add(vals[i])
+	}
+	sort.Float64s(vals)
+	var expanded []float64
+	prev := math.Inf(-1)
+	s.Buckets(func(v float64, c int64) {
+		if v < prev || c <= 0 {
+			t.Fatalf("bucket (%v, %d) after %v", v, c, prev)
+		}
+		prev = v
+		for range c {
+			expanded = append(expanded, v)
+		}
+	})
+	if int64(len(expanded)) != s.Count() {
+		t.Fatalf("buckets hold %d values, count %d", len(expanded), s.Count())
+	}
+	for r, want := range vals {
+		if got := expanded[r]; math.Abs(got-want) > Alpha*math.Abs(want)*(1+1e-9) {
+			t.Errorf("rank %d: bucket value %v, exact %v", r, got, want)
+		}
+	}
+	// Quantile(0) and Quantile(1) are the exact min and max instead.
+	for _, q := range []float64{0.005, 0.1, 0.5, 0.9, 0.995} {
+		if got, want := expanded[int(q*float64(len(vals)-1))], s.Quantile(q); got != want {
+			t.Errorf("q=%v: buckets give %v, Quantile %v", q, got, want)
+		}
+	}
+	NewSketch().Buckets(func(float64, int64) { t.Error("empty sketch has a bucket") })
+}

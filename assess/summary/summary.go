@@ -27,8 +27,10 @@ type Config struct {
 	BandDraws int
 	// Bins is the number of bins of each slope histogram (default 40).
 	Bins int
-	// PilotDraws is the number of slopes per equilibrium that fix the bins
-	// of its histogram (default 1000).
+	// PilotDraws is unused: it is kept, still defaulted to 1000 and
+	// required to be positive, so that existing configurations stay valid.
+	// The bins of the slope histograms once came from a pilot of the first
+	// PilotDraws slopes; they now come from all of them (see Histogram).
 	PilotDraws int
 	// FirstCheckpoint is the first checkpoint of the running counts, a
 	// power of two (default 16).
@@ -81,6 +83,11 @@ func (c Config) withDefaults() (Config, error) {
 // it does not combine with another Options.Extra. A Collector is not
 // safe for concurrent use, but the functions Extra makes are (one per
 // worker).
+//
+// Everything a Collector keeps is a sum over the draws it has seen, each
+// draw placed by its global index, never by its arrival: collectors fed
+// disjoint sets of draws merge exactly (Merge), and a collector's state
+// can be saved and restored exactly (MarshalJSON, UnmarshalJSON).
 type Collector struct {
 	cfg     Config
 	grid    []float64
@@ -89,16 +96,51 @@ type Collector struct {
 
 	nomX, nomF []float64
 
-	seen, ok  int64
 	bandDraws int64
 	band      []*agg.Sketch
 	undefined []int64
 
-	hist []slopeHist
+	slopes []*agg.Sketch
 
+	// now counts every draw seen; closed[k] the draws seen of index below
+	// the checkpoint threshold(k), for the thresholds that some seen draw
+	// has reached (a draw of index ≥ threshold(k)). Every later threshold
+	// is still open: its counts are now.
+	now    counts
+	closed []counts
+}
+
+// counts are the running counts over a set of draws.
+type counts struct {
+	draws, ok                            int64
 	exists, attracting, semistable, ends []int64
-	next                                 int64
-	running                              []Checkpoint
+}
+
+func newCounts(nt int) counts {
+	return counts{
+		exists: make([]int64, nt), attracting: make([]int64, nt),
+		semistable: make([]int64, nt), ends: make([]int64, nt),
+	}
+}
+
+func (a *counts) clone() counts {
+	return counts{
+		draws: a.draws, ok: a.ok,
+		exists: slices.Clone(a.exists), attracting: slices.Clone(a.attracting),
+		semistable: slices.Clone(a.semistable), ends: slices.Clone(a.ends),
+	}
+}
+
+// merge adds b's counts (of the same length) to a's.
+func (a *counts) merge(b *counts) {
+	a.draws += b.draws
+	a.ok += b.ok
+	for k := range a.exists {
+		a.exists[k] += b.exists[k]
+		a.attracting[k] += b.attracting[k]
+		a.semistable[k] += b.semistable[k]
+		a.ends[k] += b.ends[k]
+	}
 }
 
 // NewCollector returns a Collector for the model. It analyses the nominal
@@ -117,21 +159,17 @@ func NewCollector(m *assess.Model, cfg Config) (*Collector, error) {
 	}
 	nt := len(nominal.Equilibria)
 	c := &Collector{
-		cfg:        cfg,
-		grid:       Grid(m.Domain, cfg.GridPoints),
-		current:    m.Scenario.State.HasCurrent,
-		band:       make([]*agg.Sketch, cfg.GridPoints),
-		undefined:  make([]int64, cfg.GridPoints),
-		hist:       make([]slopeHist, nt),
-		exists:     make([]int64, nt),
-		attracting: make([]int64, nt),
-		semistable: make([]int64, nt),
-		ends:       make([]int64, nt),
-		next:       int64(cfg.FirstCheckpoint),
+		cfg:       cfg,
+		grid:      Grid(m.Domain, cfg.GridPoints),
+		current:   m.Scenario.State.HasCurrent,
+		band:      make([]*agg.Sketch, cfg.GridPoints),
+		undefined: make([]int64, cfg.GridPoints),
+		slopes:    make([]*agg.Sketch, nt),
+		now:       newCounts(nt),
 	}
 	for k := range nt {
 		c.labels = append(c.labels, nominal.Equilibria[k].Label)
-		c.hist[k] = slopeHist{bins: cfg.Bins, pilotCap: cfg.PilotDraws}
+		c.slopes[k] = agg.NewSketch()
 	}
 	for g := range c.band {
 		c.band[g] = agg.NewSketch()
@@ -171,8 +209,10 @@ func (c *Collector) Extra() func(f *assess.Func, rec *assess.Draw) {
 	}
 }
 
-// Add takes a block of draw records in draw order; it has the signature
-// of assess.Options.Sink.
+// Add takes a block of draw records; it has the signature of
+// assess.Options.Sink. Each record counts by its Index, so the blocks may
+// come in any order and from any subset of the draws (a shard, or the
+// draws after a restored state), as long as no draw is added twice.
 func (c *Collector) Add(block []assess.Draw) error {
 	for i := range block {
 		c.add(&block[i])
@@ -180,56 +220,90 @@ func (c *Collector) Add(block []assess.Draw) error {
 	return nil
 }
 
+// threshold is the k-th checkpoint, FirstCheckpoint·2^k, and false when
+// it does not fit in an int64.
+func (c *Collector) threshold(k int) (int64, bool) {
+	fc := int64(c.cfg.FirstCheckpoint)
+	if k < 0 || k >= 63 || fc > math.MaxInt64>>k {
+		return 0, false
+	}
+	return fc << k, true
+}
+
 func (c *Collector) add(rec *assess.Draw) {
-	c.seen++
-	if rec.Failed == "" {
-		c.ok++
-		if g := len(c.grid); rec.Index < c.cfg.BandDraws && len(rec.Extra) >= g {
-			c.bandDraws++
-			for j, v := range rec.Extra[:g] {
-				if !c.band[j].Add(v) {
-					c.undefined[j]++
-				}
-			}
+	i := int64(rec.Index)
+	// A draw at or past an open threshold closes it: every draw seen
+	// before has a smaller index, so the counts so far are its counts.
+	for {
+		t, ok := c.threshold(len(c.closed))
+		if !ok || t > i {
+			break
 		}
-		for k := range c.labels {
-			if k >= len(rec.Tracked) {
-				break
-			}
-			td := &rec.Tracked[k]
-			if td.Exists {
-				c.exists[k]++
-				c.hist[k].add(td.Slope)
-				switch td.Class {
-				case steady.Stable:
-					c.attracting[k]++
-				case steady.Semistable:
-					c.semistable[k]++
-				}
-			}
-			if rec.Outcome == c.labels[k] {
-				c.ends[k]++
+		c.closed = append(c.closed, c.now.clone())
+	}
+	c.count(&c.now, rec)
+	// A draw below closed thresholds (out of index order) counts there too.
+	for k := len(c.closed) - 1; k >= 0; k-- {
+		if t, _ := c.threshold(k); t <= i {
+			break
+		}
+		c.count(&c.closed[k], rec)
+	}
+	if rec.Failed != "" {
+		return
+	}
+	if g := len(c.grid); rec.Index < c.cfg.BandDraws && len(rec.Extra) >= g {
+		c.bandDraws++
+		for j, v := range rec.Extra[:g] {
+			if !c.band[j].Add(v) {
+				c.undefined[j]++
 			}
 		}
 	}
-	if c.seen == c.next {
-		c.checkpoint()
-		c.next *= 2
+	for k := range c.slopes {
+		if k < len(rec.Tracked) && rec.Tracked[k].Exists {
+			c.slopes[k].Add(rec.Tracked[k].Slope) // NaN and ±Inf are left out
+		}
 	}
 }
 
-func (c *Collector) checkpoint() { c.running = append(c.running, c.snapshot()) }
+// count adds the draw to the running counts n.
+func (c *Collector) count(n *counts, rec *assess.Draw) {
+	n.draws++
+	if rec.Failed != "" {
+		return
+	}
+	n.ok++
+	for k := range c.labels {
+		if k >= len(rec.Tracked) {
+			break
+		}
+		td := &rec.Tracked[k]
+		if td.Exists {
+			n.exists[k]++
+			switch td.Class {
+			case steady.Stable:
+				n.attracting[k]++
+			case steady.Semistable:
+				n.semistable[k]++
+			}
+		}
+		if c.current && rec.Outcome == c.labels[k] {
+			n.ends[k]++
+		}
+	}
+}
 
-func (c *Collector) snapshot() Checkpoint {
+func (c *Collector) checkpoint(n *counts) Checkpoint {
 	cp := Checkpoint{
-		Draws:      c.seen,
-		Succeeded:  c.ok,
-		Exists:     slices.Clone(c.exists),
-		Attracting: slices.Clone(c.attracting),
-		Semistable: slices.Clone(c.semistable),
+		Draws:      n.draws,
+		Succeeded:  n.ok,
+		Exists:     slices.Clone(n.exists),
+		Attracting: slices.Clone(n.attracting),
+		Semistable: slices.Clone(n.semistable),
 	}
 	if c.current {
-		cp.Current = slices.Clone(c.ends)
+		cp.Current = slices.Clone(n.ends)
 	}
 	return cp
 }
@@ -246,9 +320,19 @@ type Band struct {
 }
 
 // Histogram counts the slopes f'(x*) of one tracked equilibrium over the
-// draws where it exists: Counts[i] those in [Edges[i], Edges[i+1]) (the
-// last bin closed), Below and Above those outside the binned range, N the
-// total including them. Edges is nil when no slope was seen.
+// draws where it exists (and the slope is finite): Counts[i] those in
+// [Edges[i], Edges[i+1]) (the last bin closed), Below and Above those
+// outside the binned range, N the total including them. Edges is nil when
+// no slope was seen.
+//
+// The slopes are kept in a quantile sketch (agg.Sketch, relative accuracy
+// agg.Alpha = 0.1%), which merges exactly. The bins span the sketch's
+// 0.5% to 99.5% quantiles (ranks ⌊0.005(N−1)⌋ and ⌈0.995(N−1)⌉), widened
+// to include zero and padded by 2% of the span on each side, in equal
+// widths; each sketch bucket is counted in the bin holding its
+// representative value. So N is exact, and each count is exact up to the
+// slopes within 0.1% (relative) of a bin edge, which may fall in the
+// neighbouring bin (or Below/Above).
 type Histogram struct {
 	Label        string
 	Edges        []float64
@@ -257,12 +341,14 @@ type Histogram struct {
 	N            int64
 }
 
-// Checkpoint holds the running counts after the first Draws draws (in
-// draw order): the successful draws and, per tracked equilibrium, the
-// draws where it exists, attracts (class stable), is semistable, and where
-// the state ends there from the current state (Current is nil without a
-// current state). Each probability the run reports is such a count over
-// Succeeded.
+// Checkpoint holds running counts over Draws draws: the successful draws
+// and, per tracked equilibrium, the draws where it exists, attracts (class
+// stable), is semistable, and where the state ends there from the current
+// state (Current is nil without a current state). Each probability the
+// run reports is such a count over Succeeded. The checkpoint at threshold
+// c = FirstCheckpoint·2^k counts the draws of index below c, so for a
+// run of draws 0…n−1 (whole, or merged from its shards) it holds the
+// first c draws and Draws = c.
 type Checkpoint struct {
 	Draws      int64
 	Succeeded  int64
@@ -288,13 +374,15 @@ type Summary struct {
 	NominalX, NominalF []float64
 	// Slopes holds a histogram per tracked equilibrium.
 	Slopes []Histogram
-	// Running holds the checkpoints at FirstCheckpoint·2^k draws and at the
-	// last draw.
+	// Running holds the checkpoints at the thresholds c = FirstCheckpoint·2^k
+	// with c at most the number of draws seen, then one over all the draws
+	// seen when it differs from the last.
 	Running []Checkpoint
 }
 
-// Summary returns what was collected so far. It may be called once the
-// run is over; calling it again gives the same result.
+// Summary returns what was collected so far. It does not change the
+// Collector: calling it again, or after further Add or Merge calls, gives
+// the summary of the draws seen by then.
 func (c *Collector) Summary() *Summary {
 	s := &Summary{
 		Config:    c.cfg,
@@ -311,92 +399,79 @@ func (c *Collector) Summary() *Summary {
 		}
 		s.Band = append(s.Band, b)
 	}
-	for k := range c.hist {
-		s.Slopes = append(s.Slopes, c.hist[k].result(c.labels[k]))
+	for k, sk := range c.slopes {
+		s.Slopes = append(s.Slopes, histogram(c.labels[k], sk, c.cfg.Bins))
 	}
-	s.Running = slices.Clone(c.running)
-	if n := len(s.Running); c.seen > 0 && (n == 0 || s.Running[n-1].Draws != c.seen) {
-		s.Running = append(s.Running, c.snapshot())
+	seen := c.now.draws
+	for k := 0; ; k++ {
+		t, ok := c.threshold(k)
+		if !ok || t > seen {
+			break
+		}
+		n := &c.now
+		if k < len(c.closed) {
+			n = &c.closed[k]
+		}
+		s.Running = append(s.Running, c.checkpoint(n))
+	}
+	if n := len(s.Running); seen > 0 && (n == 0 || s.Running[n-1].Draws != seen) {
+		s.Running = append(s.Running, c.checkpoint(&c.now))
 	}
 	return s
 }
 
-// slopeHist bins slopes on edges fixed by a pilot of the first values.
-type slopeHist struct {
-	bins, pilotCap int
-	pilot          []float64
-	lo, width      float64
-	counts         []int64
-	below, above   int64
-	n              int64
-}
-
-func (h *slopeHist) add(v float64) {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return
+// histogram bins the slopes recorded in sk on bins chosen from them: the
+// order statistics of rank ⌊0.005(n−1)⌋ and ⌈0.995(n−1)⌉ as the sketch
+// reads them, widened to include zero (the line between attracting and
+// repelling) and padded by 2% of the span on each side, in equal widths.
+// Each sketch bucket is counted, whole, in the bin of its representative
+// value, so a slope within the sketch's relative resolution agg.Alpha of
+// a bin edge may be counted in the bin beside its own.
+func histogram(label string, sk *agg.Sketch, bins int) Histogram {
+	out := Histogram{Label: label, N: sk.Count()}
+	n := sk.Count()
+	if n == 0 {
+		return out
 	}
-	h.n++
-	if h.counts == nil {
-		h.pilot = append(h.pilot, v)
-		if len(h.pilot) >= h.pilotCap {
-			h.fix()
-		}
-		return
-	}
-	h.bin(v)
-}
-
-// fix sets the bins from the pilot: the 0.5% to 99.5% order statistics,
-// widened to include zero (the line between attracting and repelling)
-// and padded by 2% of the span on each side, in equal widths.
-func (h *slopeHist) fix() {
-	s := slices.Clone(h.pilot)
-	slices.Sort(s)
-	n := len(s)
-	lo := s[int(math.Floor(0.005*float64(n-1)))]
-	hi := s[int(math.Ceil(0.995*float64(n-1)))]
+	lo := rankValue(sk, int64(math.Floor(0.005*float64(n-1))))
+	hi := rankValue(sk, int64(math.Ceil(0.995*float64(n-1))))
 	lo, hi = math.Min(lo, 0), math.Max(hi, 0)
 	if hi == lo {
 		lo, hi = -1, 1
 	}
 	pad := 0.02 * (hi - lo)
-	h.lo, h.width = lo-pad, (hi-lo+2*pad)/float64(h.bins)
-	h.counts = make([]int64, h.bins)
-	for _, v := range h.pilot {
-		h.bin(v)
-	}
-	h.pilot = nil
-}
-
-func (h *slopeHist) edge(i int) float64 { return h.lo + float64(i)*h.width }
-
-func (h *slopeHist) bin(v float64) {
-	switch {
-	case v < h.lo:
-		h.below++
-	case v > h.edge(h.bins):
-		h.above++
-	default:
-		i := min(int((v-h.lo)/h.width), h.bins-1)
-		h.counts[i]++
-	}
-}
-
-func (h *slopeHist) result(label string) Histogram {
-	out := Histogram{Label: label, N: h.n}
-	hh := *h
-	hh.pilot = slices.Clone(h.pilot)
-	hh.counts = slices.Clone(h.counts)
-	if hh.counts == nil && len(hh.pilot) > 0 {
-		hh.fix()
-	}
-	if hh.counts == nil {
-		return out
-	}
-	out.Edges = make([]float64, hh.bins+1)
+	lo, width := lo-pad, (hi-lo+2*pad)/float64(bins)
+	out.Edges = make([]float64, bins+1)
 	for i := range out.Edges {
-		out.Edges[i] = hh.edge(i)
+		out.Edges[i] = lo + float64(i)*width
 	}
-	out.Counts, out.Below, out.Above = hh.counts, hh.below, hh.above
+	out.Counts = make([]int64, bins)
+	top := out.Edges[bins]
+	sk.Buckets(func(v float64, c int64) {
+		switch {
+		case v < lo:
+			out.Below += c
+		case v > top:
+			out.Above += c
+		default:
+			i := int((v - lo) / width)
+			out.Counts[max(0, min(i, bins-1))] += c
+		}
+	})
 	return out
+}
+
+// rankValue is the value of 0-based rank r among the values recorded in
+// sk, as its buckets represent them (the last one past the end).
+func rankValue(sk *agg.Sketch, r int64) float64 {
+	var acc int64
+	v, found := math.NaN(), false
+	sk.Buckets(func(b float64, c int64) {
+		if found {
+			return
+		}
+		v, acc = b, acc+c
+		found = acc > r
+	})
+	return v
 }
