@@ -407,7 +407,7 @@ func (a *aggregate) finish(m *Model, nominal *Snapshot, opt Options, draws int, 
 		r.Warnings = append(r.Warnings, "more than 0.1% of draws failed; see the failure list")
 	}
 	if a.faulted > 0 && float64(a.faulted) > 0.001*float64(draws) {
-		r.Warnings = append(r.Warnings, fmt.Sprintf("%d draws (%.2g%%, more than 0.1%%) met numeric trouble in the rate law; see the list of faults", a.faulted, 100*float64(a.faulted)/float64(draws)))
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%d draws (%.3g%%, more than 0.1%%) met numeric trouble in the rate law; see the list of faults", a.faulted, 100*float64(a.faulted)/float64(draws)))
 	}
 	if a.scanMissed > 0 {
 		r.Warnings = append(r.Warnings, "the equilibrium scan missed roots that continuation found; they are counted with their slope as verdict")

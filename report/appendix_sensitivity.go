@@ -3,6 +3,8 @@ package report
 import (
 	"fmt"
 	"strings"
+
+	"holdfast/assess"
 )
 
 // sensitivityDocument lays out the report of a sensitivity result.
@@ -40,11 +42,15 @@ func sensitivityDocument(r *SensitivityJSON) *document {
 	for _, w := range r.Warnings {
 		items = append(items, []span{tx("Warning: " + w)})
 	}
-	if r.FailedRuns > 0 {
+	if r.FailedRuns > 0 && len(r.Failures) == 0 {
+		// A result file written before failures were listed by reason.
 		items = append(items, []span{tx(fmt.Sprintf("%s failed and were left out.", plural(r.FailedRuns, "model run", "model runs")))})
 	}
+	for _, line := range runTroubleLines(countedOf(r.Failures), countedOf(r.Faults), r.FaultedDraws, r.DesignRuns, r.ScreeningRuns) {
+		items = append(items, []span{tx(line + ".")})
+	}
 	if len(items) == 0 {
-		d.p(tx("None."))
+		d.p(tx("None: the run raised no warning, and every model run was assessed without numeric trouble."))
 	}
 	d.list(items...)
 	limitsSection(d, "A ranking says which inputs move the verdict under the stated distributions; an input ranked low may still matter if its distribution is too narrow.")
@@ -171,4 +177,14 @@ func g3p(v *float64) string {
 		return "–"
 	}
 	return g3(*v)
+}
+
+// countedOf converts failure or fault lists read from a result file back
+// to the engine's form.
+func countedOf(cs []CountedJSON) []assess.Counted {
+	out := make([]assess.Counted, 0, len(cs))
+	for _, c := range cs {
+		out = append(out, assess.Counted{Reason: c.Reason, Draws: c.Draws, First: c.First})
+	}
+	return out
 }

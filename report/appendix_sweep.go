@@ -255,6 +255,14 @@ func curveSection(d *document, r *SweepJSON, du string) {
 	d.pf("The Monte Carlo engine on the same draws at each value of %s: the share of draws in which %s exists and attracts, with 95%% intervals, and the most common regime.", r.Driver, r.Track)
 	t := table{head: []string{r.Driver + inUnit(du), r.Track + " exists", r.Track + " attracting", "most common regime", "failed draws"},
 		right: []bool{true, true, true, false, true}}
+	faulted := false
+	for _, p := range r.Curve {
+		faulted = faulted || p.FaultedDraws != 0
+	}
+	if faulted {
+		t.head = append(t.head, "draws with numeric trouble")
+		t.right = append(t.right, true)
+	}
 	var most int64
 	differ := false
 	n := int64(r.Draws)
@@ -268,7 +276,11 @@ func curveSection(d *document, r *SweepJSON, du string) {
 			regime = pattern + " " + pc(p.Regimes[0].P) + "%"
 		}
 		ok := n - p.FailedDraws
-		t.rows = append(t.rows, []string{g(p.Value), pctCI(p.PExists, p.PExistsCI, ok), pctCI(p.PAttracting, p.PAttractingCI, ok), regime, fmt.Sprint(p.FailedDraws)})
+		row := []string{g(p.Value), pctCI(p.PExists, p.PExistsCI, ok), pctCI(p.PAttracting, p.PAttractingCI, ok), regime, fmt.Sprint(p.FailedDraws)}
+		if faulted {
+			row = append(row, fmt.Sprint(p.FaultedDraws))
+		}
+		t.rows = append(t.rows, row)
 		most = max(most, p.PathDisagree)
 		if p.PExists != p.PAttracting {
 			differ = true
@@ -308,11 +320,11 @@ func sweepWarnings(d *document, r *SweepJSON) {
 	for _, w := range r.Warnings {
 		items = append(items, []span{tx("Warning: " + w)})
 	}
-	for _, c := range r.Failures {
-		items = append(items, []span{tx(fmt.Sprintf("Failed draws: %d × %s (first: %s).", c.Draws, c.Reason, ints(c.First)))})
+	for _, line := range sweepTroubleLines(countedOf(r.Failures), countedOf(r.Faults), r.FaultedDraws, r.Draws, max(len(r.Curve), 1)) {
+		items = append(items, []span{tx(line + ".")})
 	}
 	if len(items) == 0 {
-		d.p(tx("The run raised no warning, and every draw was assessed."))
+		d.p(tx("The run raised no warning, and every draw was assessed without numeric trouble."))
 		return
 	}
 	d.list(items...)

@@ -6,6 +6,7 @@ import (
 	"math"
 	"strings"
 
+	"holdfast/assess"
 	"holdfast/assess/sensitivity"
 )
 
@@ -21,24 +22,32 @@ type SensitivityJSON struct {
 	Output      string     `json:"output"`
 	// Runs counts every model run: the Saltelli design's N·(k+2) plus a
 	// separate screening run's draws (correlated inputs only).
-	Runs          int      `json:"runs"`
-	DesignRuns    int      `json:"design_runs"`
-	ScreeningRuns int      `json:"screening_runs"`
-	Base          int      `json:"base"`
-	Uncertain     int      `json:"uncertain_inputs"`
-	RowsUsed      int      `json:"rows_used"`
-	FailedRuns    int64    `json:"failed_runs"`
-	Seed          uint64   `json:"seed"`
-	Plan          string   `json:"plan"`
-	Replicates    int      `json:"bootstrap_replicates"`
-	Level         float64  `json:"level"`
-	OutputMean    *float64 `json:"output_mean"`
-	OutputVar     *float64 `json:"output_variance"`
-	Independent   bool     `json:"independent"`
-	Correlated    []string `json:"correlated"`
-	RankedBy      string   `json:"ranked_by"`
-	SplitOn       string   `json:"split_on"`
-	ElasticityOf  string   `json:"elasticity_of"`
+	Runs          int   `json:"runs"`
+	DesignRuns    int   `json:"design_runs"`
+	ScreeningRuns int   `json:"screening_runs"`
+	Base          int   `json:"base"`
+	Uncertain     int   `json:"uncertain_inputs"`
+	RowsUsed      int   `json:"rows_used"`
+	FailedRuns    int64 `json:"failed_runs"`
+	// FaultedDraws counts the model runs that met numeric trouble (a
+	// pole or an undefined stretch of the rate law), listed by reason in
+	// Faults; Failures lists the failed runs by reason. Their first_draws
+	// are run indices: below design_runs, runs of the Saltelli design;
+	// design_runs + i, draw i of the screening run.
+	FaultedDraws int64         `json:"faulted_draws"`
+	Failures     []CountedJSON `json:"failures"`
+	Faults       []CountedJSON `json:"faults"`
+	Seed         uint64        `json:"seed"`
+	Plan         string        `json:"plan"`
+	Replicates   int           `json:"bootstrap_replicates"`
+	Level        float64       `json:"level"`
+	OutputMean   *float64      `json:"output_mean"`
+	OutputVar    *float64      `json:"output_variance"`
+	Independent  bool          `json:"independent"`
+	Correlated   []string      `json:"correlated"`
+	RankedBy     string        `json:"ranked_by"`
+	SplitOn      string        `json:"split_on"`
+	ElasticityOf string        `json:"elasticity_of"`
 	// Indices has one entry per parameter, in ranking order; fixed
 	// parameters are listed with zero effect.
 	Indices   []SensitivityRowJSON   `json:"indices"`
@@ -137,6 +146,7 @@ func NewSensitivityJSON(version, scenario, title string, r *sensitivity.Result) 
 		Output: r.Output.String(),
 		Runs:   r.Runs + r.ScreenRuns, DesignRuns: r.Runs, ScreeningRuns: r.ScreenRuns,
 		Base: r.Base, Uncertain: r.Uncertain, FailedRuns: r.FailedRuns,
+		FaultedDraws: r.Faulted, Failures: countedJSON(r.Failed), Faults: countedJSON(r.Faults),
 		Seed: r.Seed, Plan: r.Plan.String(), Level: r.Level,
 		Independent: len(r.Correlated) == 0, Correlated: append([]string{}, r.Correlated...),
 		RankedBy: r.RankedBy, SplitOn: r.SplitOn.String(), ElasticityOf: r.ElasticityOf,
@@ -322,6 +332,9 @@ func SensitivityTable(w io.Writer, title, unit string, r *sensitivity.Result) er
 	for _, msg := range r.Warnings {
 		fmt.Fprintf(w, "Warning: %s\n", msg)
 	}
+	for _, line := range runTroubleLines(r.Failed, r.Faults, r.Faulted, r.Runs, r.ScreenRuns) {
+		fmt.Fprintf(w, "%s\n", line)
+	}
 	if len(r.Local) > 0 {
 		fmt.Fprintf(w, "\nLocal view at nominal values (∂x*/∂θ = −(∂f/∂θ)/(∂f/∂x); elasticity = relative change per relative change of θ):\n")
 		t := newTable(w)
@@ -339,6 +352,26 @@ func SensitivityTable(w io.Writer, title, unit string, r *sensitivity.Result) er
 	}
 	fmt.Fprintf(w, "\n%s\n", Caution)
 	return nil
+}
+
+// runTroubleLines words the failed model runs and the numeric faults of
+// a sensitivity run by reason with their first run indices, the number
+// of runs with faults, and (with a screening run) what the indices are.
+func runTroubleLines(failed, faults []assess.Counted, faulted int64, runs, screenRuns int) []string {
+	var out []string
+	for _, c := range failed {
+		out = append(out, fmt.Sprintf("Failed model runs: %d × %s (first runs: %s)", c.Draws, c.Reason, ints(c.First)))
+	}
+	for _, c := range faults {
+		out = append(out, fmt.Sprintf("Numeric trouble: %s with %s (first runs: %s)", plural(c.Draws, "model run", "model runs"), c.Reason, ints(c.First)))
+	}
+	if faulted > 0 {
+		out = append(out, fmt.Sprintf("Model runs with numeric trouble (a pole or an undefined stretch of the rate law): %d of %d", faulted, runs+screenRuns))
+	}
+	if len(out) > 0 && screenRuns > 0 {
+		out = append(out, fmt.Sprintf("Run indices below %d are runs of the Saltelli design; index %d + i is draw i of the screening run", runs, runs))
+	}
+	return out
 }
 
 func elasticityPhrase(r *sensitivity.Result) string {
@@ -485,7 +518,7 @@ func screeningSection(w io.Writer, s *sensitivity.Screening) error {
 		fmt.Fprintf(w, "Fixed parameters have no effect and are not listed: %s.\n", strings.Join(fixed, ", "))
 	}
 	if s.Capped {
-		fmt.Fprintf(w, "Screening used the first %d successful draws of %d (the cap).\n", s.Kept, s.Seen)
+		fmt.Fprintf(w, "Screening used the %d successful draws among the first %d (the cap) of %d.\n", s.Kept, s.Cap, s.Seen)
 	}
 	return nil
 }

@@ -5,6 +5,7 @@ import (
 	"io"
 	"strings"
 
+	"holdfast/assess"
 	"holdfast/assess/steady"
 	"holdfast/assess/tipping"
 )
@@ -35,7 +36,14 @@ type SweepJSON struct {
 	Hysteresis HysteresisJSON     `json:"hysteresis"`
 	Curve      []CurvePointJSON   `json:"curve"`
 	Failures   []CountedJSON      `json:"failures"`
-	Warnings   []string           `json:"warnings"`
+	// Faults lists the numeric faults (poles, undefined stretches of the
+	// rate law) by reason, and FaultedDraws counts the draws that met
+	// them, over every engine run (one per curve point, or one without
+	// curves): a draw counts once per driver value. The first_draws of
+	// Failures and Faults are draw indices, the same at every value.
+	Faults       []CountedJSON `json:"faults"`
+	FaultedDraws int64         `json:"faulted_draws"`
+	Warnings     []string      `json:"warnings"`
 	// ScenarioText is the scenario file's full text (its SHA-256 is in
 	// the envelope).
 	ScenarioText string            `json:"scenario_text"`
@@ -157,6 +165,7 @@ type CurvePointJSON struct {
 	PAttractingCI [2]float64   `json:"p_attracting_ci"`
 	Regimes       []RegimeJSON `json:"regimes"`
 	FailedDraws   int64        `json:"failed_draws"`
+	FaultedDraws  int64        `json:"faulted_draws"`
 	PathDisagree  int64        `json:"path_disagreements"`
 }
 
@@ -202,17 +211,20 @@ func NewSweepJSON(version, scenario, title string, r *tipping.Result) *SweepJSON
 			Coverage: zeroNaN(r.Limit.Coverage),
 			Ranks:    r.Limit.Ranks,
 		},
-		Settings: newSweepSettingsJSON(r),
-		Curve:    []CurvePointJSON{},
-		Failures: countedJSON(r.Failed),
-		Warnings: append([]string{}, r.Warnings...),
-		Caution:  Caution,
+		Settings:     newSweepSettingsJSON(r),
+		Curve:        []CurvePointJSON{},
+		Failures:     countedJSON(r.Failed),
+		Faults:       countedJSON(r.Faults),
+		FaultedDraws: r.Faulted,
+		Warnings:     append([]string{}, r.Warnings...),
+		Caution:      Caution,
 		Notes: map[string]string{
 			"levels":     "quantile levels run along the sweep: the 5% value is where 5% of the draws have lost the tracked equilibrium",
 			"limit":      "the risk-quantile of the critical values (order statistic of rank ceil(N*risk)); ci is the distribution-free order-statistic interval",
 			"curve":      "engine verdicts on the same draws at each driver value; path_disagreements counts draws where the engine's identity (from nominal values) differs from the sweep's (along the driver)",
 			"hysteresis": "irreversible: the return fold lies outside the driver's allowed values, so reversing the driver alone cannot undo the shift",
 			"histogram":  "critical.histogram counts the critical values in range only; draws lost at from and draws without tipping are in critical.counts",
+			"faults":     "failures and faults are summed over the engine runs (at from and at each curve value): a draw counts once per driver value at which it failed or met numeric trouble; first_draws are draw indices, the same draw at every value",
 		},
 	}
 	for k := tipping.None; k <= tipping.Failed; k++ {
@@ -237,7 +249,7 @@ func NewSweepJSON(version, scenario, title string, r *tipping.Result) *SweepJSON
 		e, at := probJSON(p.Exists), probJSON(p.Attracting)
 		cp := CurvePointJSON{
 			Value: p.Value, PExists: e.P, PExistsCI: e.CI, PAttracting: at.P, PAttractingCI: at.CI,
-			Regimes: []RegimeJSON{}, FailedDraws: p.Failed, PathDisagree: p.Disagree,
+			Regimes: []RegimeJSON{}, FailedDraws: p.Failed, FaultedDraws: p.Faulted, PathDisagree: p.Disagree,
 		}
 		for _, g := range p.Regimes {
 			pj := probJSON(g.P)
@@ -342,8 +354,16 @@ func SweepTable(w io.Writer, title, stateUnit, driverUnit string, r *tipping.Res
 
 	if len(r.Curve) > 0 {
 		fmt.Fprintf(w, "\nProbability curves (the engine on the same draws at each value of %s):\n", r.Driver)
+		faulted := false
+		for _, p := range r.Curve {
+			faulted = faulted || p.Faulted > 0
+		}
 		t := newTable(w)
-		t.Header(r.Driver+du, r.Track+" exists", r.Track+" attracting", "most common regime")
+		head := []any{r.Driver + du, r.Track + " exists", r.Track + " attracting", "most common regime"}
+		if faulted {
+			head = append(head, "numeric trouble")
+		}
+		t.Header(head...)
 		for _, p := range r.Curve {
 			regime := "–"
 			if len(p.Regimes) > 0 {
@@ -353,7 +373,11 @@ func SweepTable(w io.Writer, title, stateUnit, driverUnit string, r *tipping.Res
 				}
 				regime = pattern + " " + pc(p.Regimes[0].P.P) + "%"
 			}
-			if err := t.Append([]string{g(p.Value), pct(p.Exists), pct(p.Attracting), regime}); err != nil {
+			row := []string{g(p.Value), pct(p.Exists), pct(p.Attracting), regime}
+			if faulted {
+				row = append(row, fmt.Sprintf("%d draws", p.Faulted))
+			}
+			if err := t.Append(row); err != nil {
 				return err
 			}
 		}
@@ -369,14 +393,35 @@ func SweepTable(w io.Writer, title, stateUnit, driverUnit string, r *tipping.Res
 				r.Track, r.Driver, most, r.Draws)
 		}
 	}
-	for _, cnt := range r.Failed {
-		fmt.Fprintf(w, "Failed draws: %d × %s (first: %s)\n", cnt.Draws, cnt.Reason, ints(cnt.First))
+	for _, line := range sweepTroubleLines(r.Failed, r.Faults, r.Faulted, r.Draws, r.Runs) {
+		fmt.Fprintf(w, "%s\n", line)
 	}
 	for _, msg := range r.Warnings {
 		fmt.Fprintf(w, "Warning: %s\n", msg)
 	}
 	fmt.Fprintf(w, "\n%s\n", Caution)
 	return nil
+}
+
+// sweepTroubleLines words the failures and numeric faults of a sweep by
+// reason with their first draw indices, and the number of draws with
+// faults over the runs engine runs of draws each.
+func sweepTroubleLines(failed, faults []assess.Counted, faulted int64, draws, runs int) []string {
+	var out []string
+	for _, c := range failed {
+		out = append(out, fmt.Sprintf("Failed draws: %d × %s (first: %s)", c.Draws, c.Reason, ints(c.First)))
+	}
+	for _, c := range faults {
+		out = append(out, fmt.Sprintf("Numeric trouble: %s with %s (first: %s)", plural(c.Draws, "draw", "draws"), c.Reason, ints(c.First)))
+	}
+	if faulted > 0 {
+		if runs <= 1 {
+			out = append(out, fmt.Sprintf("Draws with numeric trouble (a pole or an undefined stretch of the rate law): %d of %d", faulted, draws))
+		} else {
+			out = append(out, fmt.Sprintf("Draws with numeric trouble (a pole or an undefined stretch of the rate law): %d over the %d driver values of %d draws each (a draw counts once per value)", faulted, runs, draws))
+		}
+	}
+	return out
 }
 
 func kindPhrase(k tipping.Kind) string {

@@ -1,6 +1,7 @@
 package sensitivity
 
 import (
+	"cmp"
 	"context"
 	"fmt"
 	"math"
@@ -100,6 +101,16 @@ type Result struct {
 	Seed                   uint64
 	// FailedRuns counts model runs whose evaluation failed.
 	FailedRuns int64
+	// Failed lists the failed model runs by reason and Faults the
+	// numeric faults met inside successful runs (poles and undefined
+	// stretches of the rate law) by reason, both summed over the
+	// Saltelli design and the screening run; Faulted counts the model
+	// runs with numeric trouble. Each entry keeps the smallest indices
+	// (at most 5) for replay: indices below Runs are runs of the
+	// Saltelli design (see Design.Role), and index Runs + i is draw i of
+	// the screening run (correlated inputs only).
+	Failed, Faults []assess.Counted
+	Faulted        int64
 	// Indices is the Sobol' estimate (nil when it could not be made).
 	Indices *Estimate
 	Level   float64
@@ -125,7 +136,9 @@ type Result struct {
 	Reading []string
 	// Notes qualify the result (dropped rows, caps, design choices).
 	Notes []string
-	// Warnings are the engine's warnings.
+	// Warnings are the engine's warnings: those of the Saltelli design's
+	// run, then those of the screening run that differ, prefixed
+	// "screening run: ".
 	Warnings []string
 
 	minority int // runs of A and B with the less frequent verdict
@@ -238,8 +251,12 @@ func Run(ctx context.Context, m *assess.Model, opt Options) (*Result, error) {
 		for i := range block {
 			rec := &block[i]
 			y[rec.Index] = out.value(rec, target, opt.Target)
-			if _, role := d.Role(rec.Index); independent && role <= RoleB {
-				screen.add(rec)
+			if row, role := d.Role(rec.Index); independent && role <= RoleB {
+				// Screened by their place among the A and B rows, so
+				// that the cap counts screened draws, not design runs.
+				r := *rec
+				r.Index = 2*row + role
+				screen.add(&r)
 			}
 		}
 		return nil
@@ -257,7 +274,11 @@ func Run(ctx context.Context, m *assess.Model, opt Options) (*Result, error) {
 		return nil, err
 	}
 	res.FailedRuns = int64(run.Draws) - run.Succeeded
-	res.Warnings = run.Warnings
+	res.Faulted = run.Faulted
+	res.Warnings = slices.Clone(run.Warnings)
+	failed, faults := map[string]*assess.Counted{}, map[string]*assess.Counted{}
+	mergeCounts(failed, run.Failed, 0)
+	mergeCounts(faults, run.Faults, 0)
 	if !independent {
 		res.ScreenRuns = 2 * opt.Base
 		sr, err := assess.Run(ctx, m, assess.Options{
@@ -268,7 +289,16 @@ func Run(ctx context.Context, m *assess.Model, opt Options) (*Result, error) {
 			return nil, err
 		}
 		res.FailedRuns += int64(sr.Draws) - sr.Succeeded
+		res.Faulted += sr.Faulted
+		mergeCounts(failed, sr.Failed, res.Runs)
+		mergeCounts(faults, sr.Faults, res.Runs)
+		for _, w := range sr.Warnings {
+			if !slices.Contains(run.Warnings, w) {
+				res.Warnings = append(res.Warnings, "screening run: "+w)
+			}
+		}
 	}
+	res.Failed, res.Faults = sortedCounts(failed), sortedCounts(faults)
 	res.Screening = screen.Result()
 	res.Local = Local(m, nominal)
 
@@ -446,9 +476,43 @@ func (r *Result) notes(opt Options, independent bool) {
 		r.Notes = append(r.Notes, fmt.Sprintf("the quasi-random base is best balanced when the base size is a power of two; %d is not", r.Base))
 	}
 	if s := r.Screening; s != nil && s.Capped {
-		r.Notes = append(r.Notes, fmt.Sprintf("the screening measures use the first %d successful draws of %d (the cap); the rest were not kept", s.Kept, s.Seen))
+		r.Notes = append(r.Notes, fmt.Sprintf("the screening measures use the %d successful draws among the first %d (the cap) of %d; the rest were not kept", s.Kept, s.Cap, s.Seen))
 	}
 	if r.FailedRuns > 0 {
 		r.Notes = append(r.Notes, fmt.Sprintf("%d model runs failed and were left out", r.FailedRuns))
 	}
+}
+
+// keepIndices is the number of smallest indices kept per reason, as the
+// engine keeps them.
+const keepIndices = 5
+
+// mergeCounts adds the counts of src to dst by reason, with its indices
+// moved by offset, keeping the smallest keepIndices indices.
+func mergeCounts(dst map[string]*assess.Counted, src []assess.Counted, offset int) {
+	for _, c := range src {
+		d := dst[c.Reason]
+		if d == nil {
+			d = &assess.Counted{Reason: c.Reason}
+			dst[c.Reason] = d
+		}
+		d.Draws += c.Draws
+		for _, i := range c.First {
+			d.First = append(d.First, i+offset)
+		}
+		slices.Sort(d.First)
+		d.First = d.First[:min(len(d.First), keepIndices)]
+	}
+}
+
+// sortedCounts lists the counts by decreasing number, then by reason.
+func sortedCounts(m map[string]*assess.Counted) []assess.Counted {
+	out := make([]assess.Counted, 0, len(m))
+	for _, c := range m {
+		out = append(out, *c)
+	}
+	slices.SortFunc(out, func(x, y assess.Counted) int {
+		return cmp.Or(cmp.Compare(y.Draws, x.Draws), cmp.Compare(x.Reason, y.Reason))
+	})
+	return out
 }

@@ -1,14 +1,15 @@
 package sensitivity
 
 import (
+	"fmt"
 	"math"
 	"slices"
 
 	"holdfast/assess"
 )
 
-// DefaultScreenCap is the number of draws a Screen keeps when none is
-// given: the first 65,536 successful draws in draw order.
+// DefaultScreenCap is the cap of a Screen when none is given: it keeps the
+// successful draws whose index is below 65,536.
 const DefaultScreenCap = 1 << 16
 
 // Screen accumulates the engine's per-draw records for the screening
@@ -17,28 +18,42 @@ const DefaultScreenCap = 1 << 16
 // input with the output and, for the yes/no outputs, the split test of
 // Spear & Hornberger (1980).
 //
-// Memory is bounded: a Screen keeps at most Cap successful draws, the first
-// ones in draw order, and counts the rest (Screening.Capped says so).
-// Because the engine delivers records in draw order, the result is the
-// same for any number of workers. Add has the signature of
-// assess.Options.Sink. A Screen is not safe for concurrent use.
+// Memory is bounded by the cap: a Screen keeps the successful draws whose
+// global draw index (assess.Draw.Index) is below Cap, in index order, and
+// only counts the others (failed draws, and draws at index Cap or beyond).
+// Which draws are kept thus depends only on each draw itself, never on
+// the draws before it, so a run split into shards (draw i to shard
+// i mod N) or into pieces (a checkpoint, then a resumed run) can screen
+// each part on its own and combine the parts with Merge, through the
+// stored form of MarshalJSON and UnmarshalJSON when the parts run in
+// separate processes: the combined Result is the one of a single Screen
+// fed every draw. For a single run this differs from the earlier
+// definition, the first Cap successful draws in draw order, only when
+// draws below the cap fail: they are not made up by later draws, so fewer
+// than Cap are kept. (Run screens the runs of the base matrices A and B,
+// numbered by their run index in the Saltelli design.)
+//
+// The result depends only on the set of draws added, not on the block
+// sizes, the order of Add calls or the number of workers. Each draw must be
+// added once; a kept draw added twice is an error. Add has the signature
+// of assess.Options.Sink. A Screen is not safe for concurrent use.
 type Screen struct {
-	names []string
-	fixed []bool
-	unc   []int // parameter index of each uncertain input
-	cap   int
+	names   []string
+	fixed   []bool
+	unc     []int // parameter index of each uncertain input
+	cap     int
+	current bool
 
-	seen, failed, kept int
-	capped             bool
-	nTracked           int
-	current            bool
+	seen, failed int
+	nTracked     int // learnt from the first kept draw
 
-	theta   [][]float64 // [uncertain input][draw]
-	outputs [][]float64 // [tracked·numOutputs + output][draw]
+	index   []int       // global draw index of each kept draw, increasing
+	theta   [][]float64 // [uncertain input][kept draw]
+	outputs [][]float64 // [tracked·numOutputs + output][kept draw]
 }
 
-// NewScreen returns a Screen for the model's parameters keeping at most
-// cap draws (0: DefaultScreenCap).
+// NewScreen returns a Screen for the model's parameters keeping the
+// successful draws with index below cap (0: DefaultScreenCap).
 func NewScreen(m *assess.Model, cap int) *Screen {
 	if cap <= 0 {
 		cap = DefaultScreenCap
@@ -54,30 +69,54 @@ func NewScreen(m *assess.Model, cap int) *Screen {
 	return s
 }
 
-// Add takes a block of draw records (in draw order).
+// Add takes a block of draw records. It copies what it keeps, so the
+// records may be reused after the call. It fails on a record with a
+// negative index or the wrong number of parameters, and on a kept draw
+// added twice; the records before the bad one are added.
 func (s *Screen) Add(block []assess.Draw) error {
 	for i := range block {
-		s.add(&block[i])
+		if err := s.addDraw(&block[i]); err != nil {
+			return err
+		}
 	}
 	return nil
 }
 
-func (s *Screen) add(rec *assess.Draw) {
-	s.seen++
+// add adds one record, for Run, whose records are always well formed.
+func (s *Screen) add(rec *assess.Draw) { _ = s.addDraw(rec) }
+
+func (s *Screen) addDraw(rec *assess.Draw) error {
+	i := rec.Index
+	if i < 0 {
+		return fmt.Errorf("screen: draw index %d is negative", i)
+	}
+	if len(rec.Theta) != len(s.names) {
+		return fmt.Errorf("screen: draw %d has %d parameters, the model %d", i, len(rec.Theta), len(s.names))
+	}
 	if rec.Failed != "" {
+		s.seen++
 		s.failed++
-		return
+		return nil
 	}
-	if s.kept == s.cap {
-		s.capped = true
-		return
+	if i >= s.cap {
+		s.seen++
+		return nil
 	}
-	if s.kept == 0 {
+	pos := len(s.index)
+	if pos > 0 && i <= s.index[pos-1] {
+		var found bool
+		if pos, found = slices.BinarySearch(s.index, i); found {
+			return fmt.Errorf("screen: draw %d added twice", i)
+		}
+	}
+	if len(s.index) == 0 {
 		s.nTracked = len(rec.Tracked)
 		s.outputs = make([][]float64, s.nTracked*int(numOutputs))
 	}
+	s.seen++
+	s.index = slices.Insert(s.index, pos, i)
 	for j, p := range s.unc {
-		s.theta[j] = append(s.theta[j], rec.Theta[p])
+		s.theta[j] = slices.Insert(s.theta[j], pos, rec.Theta[p])
 	}
 	for t := range s.nTracked {
 		label := assess.Label(t)
@@ -87,10 +126,10 @@ func (s *Screen) add(rec *assess.Draw) {
 				v = o.value(rec, t, label)
 			}
 			c := &s.outputs[t*int(numOutputs)+int(o)]
-			*c = append(*c, v)
+			*c = slices.Insert(*c, pos, v)
 		}
 	}
-	s.kept++
+	return nil
 }
 
 // Screening is the result of a Screen.
@@ -100,8 +139,10 @@ type Screening struct {
 	Names []string
 	Fixed []bool
 	// Seen is the number of draws received, Failed those that failed,
-	// Kept those analysed (at most Cap). Capped is set when draws were left
-	// out because Cap was reached.
+	// Kept the successful ones with draw index below Cap, which are the
+	// ones analysed. The other Seen − Failed − Kept draws succeeded but lie
+	// at index Cap or beyond; Capped is set when there are any. Failed
+	// counts failed draws at every index.
 	Seen, Failed, Kept, Cap int
 	Capped                  bool
 	// Equilibria holds the measures per tracked equilibrium E1, E2, ….
@@ -147,7 +188,8 @@ func (r *Screening) Of(label string, o Output) *Measures {
 func (s *Screen) Result() *Screening {
 	r := &Screening{
 		Names: s.names, Fixed: s.fixed,
-		Seen: s.seen, Failed: s.failed, Kept: s.kept, Cap: s.cap, Capped: s.capped,
+		Seen: s.seen, Failed: s.failed, Kept: len(s.index), Cap: s.cap,
+		Capped: s.seen-s.failed-len(s.index) > 0,
 	}
 	var full, sub rankCache
 	for t := range s.nTracked {

@@ -78,6 +78,16 @@
 // probability of each regime, with the engine's intervals (Wilson, or
 // Clopper–Pearson at 0 and N).
 //
+// # Failures and numeric faults
+//
+// Draws that cannot be assessed, and numeric faults inside assessed
+// draws (poles and undefined stretches of the rate law, as the engine
+// finds them), are counted by reason with the first draw indices, over
+// every engine run of the sweep: a draw counts once per driver value at
+// which it fails or faults, and its index is the same at every value.
+// More than 0.1% of the draws with faults at any driver value raises a
+// warning (common practice, no source). Nothing is dropped silently.
+//
 // The sweep replaces the driver in every draw; the driver's own
 // distribution only bounds the values it may take, and its rank
 // correlations, if any, have no effect on the other parameters' draws.

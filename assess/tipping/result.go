@@ -2,8 +2,11 @@ package tipping
 
 import (
 	"cmp"
+	"fmt"
 	"math"
 	"slices"
+	"strconv"
+	"strings"
 
 	"holdfast/assess"
 	"holdfast/assess/agg"
@@ -136,6 +139,9 @@ type CurvePoint struct {
 	Exists, Attracting assess.Probability
 	Regimes            []assess.Regime
 	Failed             int64
+	// Faulted counts the draws that met numeric trouble (a pole or an
+	// undefined stretch of the rate law) at this driver value.
+	Faulted int64
 	// Disagree counts the draws in which the engine's verdict on the
 	// tracked equilibrium (followed from nominal values straight to the
 	// draw) differs from the sweep's (followed along the driver from
@@ -163,8 +169,22 @@ type Result struct {
 	// Curve is empty without Options.Steps.
 	Curve []CurvePoint
 	// Tips holds every draw's outcome, in draw order.
-	Tips     []Tip
-	Failed   []assess.Counted
+	Tips []Tip
+	// Failed lists by reason the draws that could not be assessed at
+	// From (by the engine or by the continuation along the driver) and
+	// the engine's failures at the curves' other driver values. Faults
+	// lists by reason the numeric faults (poles and undefined stretches
+	// of the rate law) the engine met in successful draws, over every
+	// engine run of the sweep (Runs of them), and Faulted counts the
+	// draws with numeric trouble summed over those runs. A draw counts
+	// once per driver value at which it failed or faulted; First holds
+	// the smallest draw indices (at most 5), the same draw i (θ_i of the
+	// scenario's design) at every driver value.
+	Failed, Faults []assess.Counted
+	Faulted        int64
+	// Runs is the number of engine runs: one per curve point (the first
+	// at From), or one without curves.
+	Runs     int
 	Warnings []string
 }
 
@@ -175,7 +195,7 @@ func probability(k, n int64) assess.Probability {
 }
 
 // summarise turns the collected tips into the result.
-func (sw *sweep) summarise(first *assess.Result) *Result {
+func (sw *sweep) summarise() *Result {
 	opt := sw.opt
 	r := &Result{
 		Driver: opt.Driver, From: opt.From, To: opt.To, Allowed: sw.allowed,
@@ -254,16 +274,59 @@ func (sw *sweep) summarise(first *assess.Result) *Result {
 	h.Unresolved = probability(hyst[Unresolved], h.N)
 	h.Return = sortedQuantiles(returns)
 	h.Width = sortedQuantiles(widths)
-	r.Failed = sortedCounts(sw.failures)
-	r.Warnings = append(r.Warnings, first.Warnings...)
-	if f := c.Count[Failed]; f > 0 && float64(f) > 0.001*float64(opt.Draws) {
+	return r
+}
+
+// engineRun adds an engine run of the sweep at driver value d to the
+// failure and fault lists and the warnings.
+func (sw *sweep) engineRun(r *assess.Result, d float64) {
+	mergeCounts(sw.failures, r.Failed)
+	mergeCounts(sw.faults, r.Faults)
+	sw.faulted += r.Faulted
+	for _, w := range r.Warnings {
+		if !engineFaultWarning(r, w) && !slices.Contains(sw.warnings, w) {
+			sw.warnings = append(sw.warnings, w)
+		}
+	}
+	if r.Faulted > 0 && float64(r.Faulted) > 0.001*float64(r.Draws) {
+		sw.faultRuns++
+		if f := float64(r.Faulted) / float64(r.Draws); f > sw.worstShare {
+			sw.worstShare, sw.worstAt, sw.worstFaulted = f, d, r.Faulted
+		}
+	}
+	sw.runs++
+}
+
+// engineFaultWarning tells the engine's warning that more than 0.1% of a
+// run's draws met numeric trouble (see assess.Result.Warnings): the sweep
+// replaces those of its runs by one of its own.
+func engineFaultWarning(r *assess.Result, w string) bool {
+	return r.Faulted > 0 && strings.HasPrefix(w, strconv.FormatInt(r.Faulted, 10)+" draws (")
+}
+
+// finish completes the result after every engine run: the failure and
+// fault lists merged over the runs, and the warnings (the engines', the
+// sweep's on faults and failures, and on the tracked equilibrium's class).
+func (sw *sweep) finish(r *Result) {
+	r.Failed, r.Faults = sortedCounts(sw.failures), sortedCounts(sw.faults)
+	r.Faulted, r.Runs = sw.faulted, sw.runs
+	r.Warnings = append(r.Warnings, sw.warnings...)
+	switch {
+	case sw.faultRuns == 0:
+	case sw.runs == 1:
+		r.Warnings = append(r.Warnings, fmt.Sprintf("%d of %d draws (%.3g%%, more than 0.1%%) met numeric trouble in the rate law at %s = %.4g; see the list of faults",
+			sw.worstFaulted, r.Draws, 100*sw.worstShare, r.Driver, sw.worstAt))
+	default:
+		r.Warnings = append(r.Warnings, fmt.Sprintf("at %d of %d driver values more than 0.1%% of draws met numeric trouble in the rate law (at most %d of %d draws, %.3g%%, at %s = %.4g); see the curves and the list of faults",
+			sw.faultRuns, sw.runs, sw.worstFaulted, r.Draws, 100*sw.worstShare, r.Driver, sw.worstAt))
+	}
+	if f := r.Critical.Count[Failed]; f > 0 && float64(f) > 0.001*float64(r.Draws) {
 		r.Warnings = append(r.Warnings, "more than 0.1% of draws could not be assessed; see the failure list")
 	}
 	if cl := r.Nominal.Class; cl != steady.Stable {
 		r.Warnings = append(r.Warnings, "the tracked equilibrium "+r.Track+" is "+cl.String()+
 			" at nominal values: its critical values are where it vanishes or changes stability, not where a stable state is lost")
 	}
-	return r
 }
 
 // sortedQuantiles returns type-1 sample quantiles of v at
@@ -280,8 +343,31 @@ func sortedQuantiles(v []float64) assess.Quantiles {
 	return q
 }
 
+// keepIndices is the number of smallest draw indices kept per reason, as
+// the engine keeps them.
+const keepIndices = 5
+
+// mergeCounts adds the counts of src to dst by reason (as the engine
+// merges its workers' counts): the numbers add up, and the smallest
+// keepIndices draw indices are kept.
+func mergeCounts(dst map[string]*assess.Counted, src []assess.Counted) {
+	for _, c := range src {
+		d := dst[c.Reason]
+		if d == nil {
+			d = &assess.Counted{Reason: c.Reason}
+			dst[c.Reason] = d
+		}
+		d.Draws += c.Draws
+		d.First = append(d.First, c.First...)
+		slices.Sort(d.First)
+		d.First = slices.Compact(d.First)
+		d.First = d.First[:min(len(d.First), keepIndices)]
+	}
+}
+
+// sortedCounts lists the counts by decreasing number, then by reason.
 func sortedCounts(m map[string]*assess.Counted) []assess.Counted {
-	var out []assess.Counted
+	out := []assess.Counted{}
 	for _, c := range m {
 		out = append(out, *c)
 	}

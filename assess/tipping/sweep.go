@@ -89,6 +89,13 @@ type sweep struct {
 	nominal  *assess.Snapshot
 	tips     []Tip
 	failures map[string]*assess.Counted
+	// Faults, warnings and run counts of the engine runs (see engineRun).
+	faults              map[string]*assess.Counted
+	faulted             int64
+	warnings            []string
+	runs, faultRuns     int     // engine runs, and those with faults in > 0.1% of draws
+	worstShare, worstAt float64 // the largest share of faulted draws, and its driver value
+	worstFaulted        int64
 }
 
 // check validates the options against the model.
@@ -157,6 +164,7 @@ func check(m *assess.Model, opt Options) (*sweep, error) {
 		m: m, opt: opt, j: j, k: k, allowed: [2]float64{lo, hi},
 		finder: fopt, nominal: nominal,
 		failures: map[string]*assess.Counted{},
+		faults:   map[string]*assess.Counted{},
 	}, nil
 }
 
@@ -242,8 +250,10 @@ func (sw *sweep) collect(block []assess.Draw) error {
 			if !math.IsNaN(ex[exTReturn]) {
 				tip.DReturn = sw.driver(ex[exTReturn])
 			}
-			if tip.Kind == Failed {
-				why := rec.Failed
+			// The engine's failures are listed with its own reasons
+			// (see engineRun).
+			if tip.Kind == Failed && rec.Failed == "" {
+				why := ""
 				if r := reason(ex[exReason]); r != reasonEngine && r > 0 && r < numReasons {
 					why = reasonNames[r]
 				}
@@ -294,6 +304,12 @@ func (sw *sweep) driver(t float64) float64 {
 // the engine at each of Steps driver values on the same draws (common
 // random numbers), so that they are smooth in d and comparable.
 //
+// Failures and numeric faults (poles, undefined stretches of the rate
+// law) of every engine run are counted by reason with their first draw
+// indices and merged over the runs (see Result.Failed), with a warning
+// when more than 0.1% of the draws at some driver value met numeric
+// trouble.
+//
 // Errors in the options are *OptionError.
 func Run(ctx context.Context, m *assess.Model, opt Options) (*Result, error) {
 	sw, err := check(m, opt)
@@ -329,7 +345,8 @@ func Run(ctx context.Context, m *assess.Model, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	res := sw.summarise(first)
+	sw.engineRun(first, opt.From)
+	res := sw.summarise()
 	for s := 0; s < opt.Steps; s++ {
 		d := opt.From + (opt.To-opt.From)*float64(s)/float64(opt.Steps-1)
 		if s == opt.Steps-1 {
@@ -357,8 +374,10 @@ func Run(ctx context.Context, m *assess.Model, opt Options) (*Result, error) {
 		if err != nil {
 			return nil, err
 		}
+		sw.engineRun(r, d)
 		res.Curve = append(res.Curve, curvePoint(d, r, sw.k, disagree))
 	}
+	sw.finish(res)
 	return res, nil
 }
 
@@ -388,6 +407,7 @@ func curvePoint(d float64, r *assess.Result, k int, disagree int64) CurvePoint {
 		Attracting: t.Attracting,
 		Regimes:    r.Regimes,
 		Failed:     int64(r.Draws) - r.Succeeded,
+		Faulted:    r.Faulted,
 		Disagree:   disagree,
 	}
 }
