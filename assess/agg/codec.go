@@ -4,6 +4,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"strconv"
+	"strings"
 )
 
 // sketchJSON is the stored form of a Sketch: exact bucket counts (sparse,
@@ -14,7 +16,7 @@ type sketchJSON struct {
 	Zero  int64      `json:"zero"`
 	Min   *float64   `json:"min"`
 	Max   *float64   `json:"max"`
-	Sum   jsonFloat  `json:"sum"`
+	Sum   ExactFloat `json:"sum"`
 	Pos   [][2]int64 `json:"pos"`
 	Neg   [][2]int64 `json:"neg"`
 }
@@ -31,7 +33,7 @@ func (st *store) sparse() [][2]int64 {
 
 // MarshalJSON writes the sketch's exact state.
 func (s *Sketch) MarshalJSON() ([]byte, error) {
-	j := sketchJSON{Count: s.count, Zero: s.zero, Sum: jsonFloat(s.sum), Pos: s.pos.sparse(), Neg: s.neg.sparse()}
+	j := sketchJSON{Count: s.count, Zero: s.zero, Sum: ExactFloat(s.sum), Pos: s.pos.sparse(), Neg: s.neg.sparse()}
 	if s.count > 0 {
 		j.Min, j.Max = &s.min, &s.max
 	}
@@ -78,38 +80,63 @@ func (s *Sketch) UnmarshalJSON(b []byte) error {
 	return nil
 }
 
-// jsonFloat is a float64 that JSON can hold when it is not finite: a
-// number when finite, else the string "+Inf", "-Inf" or "NaN" (a sum of
-// values near the float64 limit can overflow).
-type jsonFloat float64
+// ExactFloat is a float64 that JSON holds bit for bit, whatever its value:
+// a finite value as a JSON number in its shortest round-trip form (−0
+// included), the others as the strings "+Inf", "-Inf" and "NaN" (or
+// "NaN:0x…" with the bits of a NaN other than math.NaN()'s). Stored
+// states use it where encoding/json, which rejects NaN and ±Inf, would
+// fail or round.
+type ExactFloat float64
 
-func (f jsonFloat) MarshalJSON() ([]byte, error) {
-	v := float64(f)
+// MarshalJSON writes the value exactly.
+func (v ExactFloat) MarshalJSON() ([]byte, error) {
+	f := float64(v)
 	switch {
-	case math.IsNaN(v):
-		return []byte(`"NaN"`), nil
-	case math.IsInf(v, 1):
+	case math.IsInf(f, 1):
 		return []byte(`"+Inf"`), nil
-	case math.IsInf(v, -1):
+	case math.IsInf(f, -1):
 		return []byte(`"-Inf"`), nil
+	case math.IsNaN(f):
+		if b := math.Float64bits(f); b != math.Float64bits(math.NaN()) {
+			return fmt.Appendf(nil, `"NaN:%#016x"`, b), nil
+		}
+		return []byte(`"NaN"`), nil
 	}
-	return json.Marshal(v)
+	return strconv.AppendFloat(nil, f, 'g', -1, 64), nil
 }
 
-func (f *jsonFloat) UnmarshalJSON(b []byte) error {
-	switch string(b) {
-	case `"NaN"`:
-		*f = jsonFloat(math.NaN())
-	case `"+Inf"`:
-		*f = jsonFloat(math.Inf(1))
-	case `"-Inf"`:
-		*f = jsonFloat(math.Inf(-1))
-	default:
-		var v float64
-		if err := json.Unmarshal(b, &v); err != nil {
-			return fmt.Errorf("sketch: sum %s is not a number", b)
+// UnmarshalJSON reads a value written by MarshalJSON (or any JSON number).
+func (v *ExactFloat) UnmarshalJSON(b []byte) error {
+	if len(b) > 0 && b[0] == '"' {
+		var s string
+		if err := json.Unmarshal(b, &s); err != nil {
+			return err
 		}
-		*f = jsonFloat(v)
+		switch {
+		case s == "+Inf":
+			*v = ExactFloat(math.Inf(1))
+		case s == "-Inf":
+			*v = ExactFloat(math.Inf(-1))
+		case s == "NaN":
+			*v = ExactFloat(math.NaN())
+		case strings.HasPrefix(s, "NaN:0x"):
+			bits, err := strconv.ParseUint(s[len("NaN:0x"):], 16, 64)
+			if f := math.Float64frombits(bits); err != nil || !math.IsNaN(f) {
+				return fmt.Errorf("bad NaN %q", s)
+			}
+			*v = ExactFloat(math.Float64frombits(bits))
+		default:
+			return fmt.Errorf("bad number %q", s)
+		}
+		return nil
 	}
+	if string(b) == "null" {
+		return fmt.Errorf("null is not a number")
+	}
+	var f float64
+	if err := json.Unmarshal(b, &f); err != nil {
+		return err
+	}
+	*v = ExactFloat(f)
 	return nil
 }

@@ -77,8 +77,9 @@ func BenchmarkCertifiedMonteCarlo(b *testing.B) {
 }
 
 // BenchmarkCertify times, on one core, the certification of one lake
-// draw (certify) beside the equilibrium search that the engine runs for
-// the same draw (find, with the engine's settings).
+// draw (certify; certify-near with the scan's equilibria as positions, as
+// the hook has them) beside the equilibrium search that the engine runs
+// for the same draw (find, with the engine's settings).
 func BenchmarkCertify(b *testing.B) {
 	m := demoModel(b, "lake")
 	d, err := m.Design(sample.Random, 4096, 1)
@@ -86,12 +87,20 @@ func BenchmarkCertify(b *testing.B) {
 		b.Fatal(err)
 	}
 	thetas := make([][]float64, 4096)
+	near := make([][]float64, 4096)
 	for i := range thetas {
 		thetas[i] = make([]float64, len(m.Names))
 		d.Draw(i, thetas[i])
+		res, err := steady.Find(m.Func(thetas[i]), m.Domain[0], m.Domain[1], steady.DefaultOptions())
+		if err != nil {
+			b.Fatal(err)
+		}
+		for _, e := range res.Equilibria {
+			near[i] = append(near[i], e.X)
+		}
 	}
 	th := make([]float64, len(m.Names))
-	b.Run("certify", func(b *testing.B) {
+	certify := func(b *testing.B, withNear bool) {
 		ch, err := NewChecker(Options{RootWidth: math.Inf(1)})
 		if err != nil {
 			b.Fatal(err)
@@ -100,7 +109,11 @@ func BenchmarkCertify(b *testing.B) {
 		evals, i := 0, 0
 		for b.Loop() {
 			copy(th, thetas[i&4095])
-			rep, err := ch.Certify(fn, m.Domain[0], m.Domain[1])
+			var pos []float64
+			if withNear {
+				pos = near[i&4095]
+			}
+			rep, err := ch.CertifyNear(fn, m.Domain[0], m.Domain[1], pos)
 			if err != nil {
 				b.Fatal(err)
 			}
@@ -108,7 +121,9 @@ func BenchmarkCertify(b *testing.B) {
 			i++
 		}
 		b.ReportMetric(float64(evals)/float64(i), "evals/draw")
-	})
+	}
+	b.Run("certify", func(b *testing.B) { certify(b, false) })
+	b.Run("certify-near", func(b *testing.B) { certify(b, true) })
 	b.Run("find", func(b *testing.B) {
 		fopt := steady.DefaultOptions()
 		fopt.QuadRelTol = 1e-6

@@ -256,6 +256,8 @@ type Checker struct {
 	deferred []box // boxes waiting for the next pass
 	tops     []box // the boxes of the current pass
 	deferW   float64
+	near     []float64 // approximate roots (CertifyNear), sorted
+	nearMin  float64   // narrowest box split between them
 	rep      Report
 }
 
@@ -297,10 +299,44 @@ func Check(f Func, lo, hi float64, found []steady.Equilibrium, opt Options) (*Re
 // documentation) and returns the report, owned by c. The error is non-nil
 // only for an invalid domain.
 func (c *Checker) Certify(f Func, lo, hi float64) (*Report, error) {
+	return c.CertifyNear(f, lo, hi, nil)
+}
+
+// CertifyNear is Certify guided by approximate positions of the roots,
+// such as a scan's equilibria (any order; values outside [lo, hi] or not
+// finite are ignored). With the middles between consecutive positions,
+// where f has an extremum, they mark the places that must end up in
+// different boxes: a box at least 10⁻³ of the domain wide that holds two
+// or more of them (ends included; at least a quarter of that apart) is
+// bisected without being evaluated, at the middle of the gap between two
+// of them nearest its own middle, so that each root comes to lie in a box
+// reaching about a quarter of the way to its neighbours, the extrema in
+// boxes between; the rest is unchanged. The positions only steer the
+// bisection: the report is proven whatever they are, and wrong or missing
+// positions cost only evaluations.
+func (c *Checker) CertifyNear(f Func, lo, hi float64, near []float64) (*Report, error) {
 	if !(lo < hi) || math.IsInf(lo, 0) || math.IsInf(hi, 0) || math.IsInf(hi-lo, 0) {
 		return nil, fmt.Errorf("%w: [%g, %g] (need finite lo < hi)", ErrDomain, lo, hi)
 	}
 	c.f, c.lo, c.hi, c.width = f, lo, hi, hi-lo
+	c.near = c.near[:0]
+	for _, x := range near {
+		if x >= lo && x <= hi {
+			c.near = append(c.near, x)
+		}
+	}
+	slices.Sort(c.near)
+	// Between two consecutive roots f has an extremum, where a box can be
+	// cleared but not certified, and next to which a box holding a root
+	// cannot be proven monotone: its middle is a third kind of place to
+	// keep boxes apart (an estimate; common practice, no source).
+	for i, n := 1, len(c.near); i < n; i++ {
+		c.near = append(c.near, c.near[i-1]+(c.near[i]-c.near[i-1])/2)
+	}
+	slices.Sort(c.near)
+	// Positions closer than this are left to the regular bisection,
+	// which handles clusters (common practice, no source).
+	c.nearMin = 1e-3 * c.width
 	r := &c.rep
 	*r = Report{Lo: lo, Hi: hi, Roots: r.Roots[:0], Unresolved: r.Unresolved[:0], Disagreements: r.Disagreements[:0]}
 	// Passes by scale: a box that needs splitting below the pass's width
@@ -384,6 +420,14 @@ func finite(iv expr.Interval) bool {
 func (c *Checker) process(b box, minW float64) {
 	r := &c.rep
 	r.Boxes++
+	if m, ok := c.nearSplit(b); ok {
+		if fm := c.point(m); sign(fm) != 0 {
+			c.stack = append(c.stack,
+				box{lo: m, hi: b.hi, flo: fm, fhi: b.fhi},
+				box{lo: b.lo, hi: m, flo: b.flo, fhi: fm})
+			return
+		}
+	}
 	// The parent's enclosure of f' holds on b too, and b's end values are
 	// closer together: the mean value form may already clear b.
 	if b.pd && finite(b.flo) && finite(b.fhi) && c.cleared(b, b.d) {
@@ -478,6 +522,25 @@ func (c *Checker) split(b box) (float64, expr.Interval, bool) {
 		}
 	}
 	return firstM, firstF, have
+}
+
+// nearSplit returns, for a box that holds two or more of the approximate
+// roots c.near (ends included), the middle of the gap between two
+// consecutive ones nearest the box's middle.
+func (c *Checker) nearSplit(b box) (float64, bool) {
+	if len(c.near) < 2 || b.hi-b.lo < c.nearMin {
+		return 0, false
+	}
+	i, _ := slices.BinarySearch(c.near, b.lo)
+	mid := b.lo + (b.hi-b.lo)/2
+	best, bd := 0.0, math.Inf(1)
+	for k := i + 1; k < len(c.near) && c.near[k] <= b.hi; k++ {
+		m := c.near[k-1] + (c.near[k]-c.near[k-1])/2
+		if d := math.Abs(m - mid); d < bd && m > b.lo && m < b.hi && c.near[k]-c.near[k-1] >= c.nearMin/4 {
+			best, bd = m, d
+		}
+	}
+	return best, bd < math.Inf(1)
 }
 
 // cleared reports whether the bicentred mean value form proves f ≠ 0 on

@@ -44,8 +44,15 @@
 // that a hard cluster cannot spend the budget before the rest of the
 // domain has been examined at the same scale. Enclosures of f come from
 // Machine.Interval at points and Machine.IntervalSlope over boxes
-// (assess/expr), whose rules for saturating terms k·u/(c + u) keep the
-// usual rate laws' boxes few.
+// (assess/expr), whose rules for saturating terms k·u/(c + u) and their
+// derivatives keep the usual rate laws' boxes few.
+//
+// CertifyNear takes approximate positions of the roots (a scan's
+// equilibria): a box holding two or more of them, or of the middles
+// between consecutive ones (where f has an extremum), is bisected between
+// them without being evaluated, since it could be neither certified nor
+// cleared. The positions only choose where to bisect, never what is
+// proven.
 //
 // What remains is reported, adjacent boxes merged, as unresolved: a small
 // interval that may hold a multiple root (f and f' both vanish there, the
@@ -71,12 +78,20 @@
 //
 // # Monte Carlo
 //
-// Hook makes an assess.Options.Extra hook that certifies every draw and
-// writes its status into the draw record (see the Ex* constants for the
+// Hook makes an assess.Options.Extra hook that certifies every draw,
+// guided by the positions of the draw's tracked equilibria, and writes
+// its status into the draw record (see the Ex* constants for the
 // layout); Summary, fed from assess.Options.Sink, counts the certified
 // draws, the regime probabilities over certified draws beside those over
 // all draws, and the disagreements with the draw indices, so that a draw
-// can be replayed (holdfast equilibria SCENARIO --seed S --draw i).
+// can be replayed (holdfast equilibria SCENARIO --seed S --draw i). The
+// scan's regimes name the attracting side of a semistable equilibrium as
+// the engine does; the record's pattern lacks it, so the hook, which runs
+// its own search on every draw with such an equilibrium, writes it
+// (ExSides). A Summary is exact integer state: the Summaries of the shards
+// of a run, or of pieces of its draw range, merge (Summary.Merge) into the
+// Summary of the whole run, and MarshalJSON / UnmarshalJSON store and
+// restore it between pieces.
 //
 // The package does no I/O and keeps no global state.
 package certify

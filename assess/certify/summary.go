@@ -2,7 +2,9 @@ package certify
 
 import (
 	"cmp"
+	"errors"
 	"fmt"
+	"math/bits"
 	"slices"
 	"strings"
 
@@ -15,6 +17,15 @@ import (
 // assess.Options.Sink (alone or beside other sinks). It is not safe for
 // concurrent use; the engine calls the sink from one goroutine, in draw
 // order, so the result does not depend on the number of workers.
+//
+// A Summary is mergeable and resumable: a run split into shards (draws
+// i ≡ K mod N) or into contiguous pieces gives, with one Summary per part
+// merged in any order (Merge), the Result of one Summary fed every draw;
+// MarshalJSON and UnmarshalJSON keep its exact state between the pieces.
+// Every count is an integer, the widest unresolved interval merges by
+// max, and the listed draws are kept by global index (the smallest ones,
+// whatever order the records come in), so that merging keeps the first
+// ones of the whole run.
 type Summary struct {
 	seen, checked, certified, unresolved int64
 	evals                                int64
@@ -23,15 +34,18 @@ type Summary struct {
 	cert                                 map[[2]uint64]int64 // certified roots: count, repelling bits
 	disagreed                            int64
 	kinds                                map[Kind]*listed
-	listed                               []Disagreeing
+	listed                               []Disagreeing // the smallest indices, sorted
 }
 
 // MaxListed is the number of disagreeing draws a Summary lists by index.
 const MaxListed = 100
 
+// maxFirst is the number of draw indices kept per kind of disagreement.
+const maxFirst = 5
+
 type listed struct {
 	n     int64
-	first []int
+	first []int // the smallest indices, sorted
 }
 
 // Disagreeing is one draw whose scan and certification disagree.
@@ -45,10 +59,24 @@ func NewSummary() *Summary {
 	return &Summary{all: map[uint64]int64{}, cert: map[[2]uint64]int64{}, kinds: map[Kind]*listed{}}
 }
 
+// init makes the maps of a zero Summary.
+func (s *Summary) init() {
+	if s.all == nil {
+		s.all = map[uint64]int64{}
+	}
+	if s.cert == nil {
+		s.cert = map[[2]uint64]int64{}
+	}
+	if s.kinds == nil {
+		s.kinds = map[Kind]*listed{}
+	}
+}
+
 // Add takes a block of draw records in draw order; it has the signature of
 // assess.Options.Sink. Records without the hook's fields (Fields) are
 // counted as seen only.
 func (s *Summary) Add(block []assess.Draw) error {
+	s.init()
 	for i := range block {
 		s.add(&block[i])
 	}
@@ -63,7 +91,7 @@ func (s *Summary) add(rec *assess.Draw) {
 	}
 	s.checked++
 	s.evals += int64(d.Evals)
-	s.all[patternCode(rec.Pattern)]++
+	s.all[patternCode(rec.Pattern, d.Sides, d.SidesKnown)]++
 	switch d.Status {
 	case Certified:
 		s.certified++
@@ -78,9 +106,7 @@ func (s *Summary) add(rec *assess.Draw) {
 	}
 	if d.Flags != 0 {
 		s.disagreed++
-		if len(s.listed) < MaxListed {
-			s.listed = append(s.listed, Disagreeing{Draw: rec.Index, Flags: d.Flags})
-		}
+		s.listed = keepFirst(s.listed, Disagreeing{Draw: rec.Index, Flags: d.Flags}, MaxListed, func(d Disagreeing) int { return d.Draw })
 		for k := MissedByScan; k <= SidesDiffer; k <<= 1 {
 			if d.Flags&k == 0 {
 				continue
@@ -91,40 +117,159 @@ func (s *Summary) add(rec *assess.Draw) {
 				s.kinds[k] = l
 			}
 			l.n++
-			if len(l.first) < 5 {
-				l.first = append(l.first, rec.Index)
-			}
+			l.first = keepFirst(l.first, rec.Index, maxFirst, func(i int) int { return i })
 		}
 	}
 }
 
-// patternCode encodes the scan's ordered classes without allocating: a
-// leading 1 bit, then 3 bits per equilibrium (the Class), for up to 20
-// equilibria; 0 for more.
-func patternCode(p []steady.Class) uint64 {
+// keepFirst inserts v into list, sorted by index and holding at most n
+// elements, keeping the n smallest indices (an equal index goes after
+// those already there). Records arriving in increasing index are
+// appended until the list is full.
+func keepFirst[T any](list []T, v T, n int, index func(T) int) []T {
+	k := len(list)
+	for k > 0 && index(list[k-1]) > index(v) {
+		k--
+	}
+	switch {
+	case k == n:
+		return list
+	case len(list) < n:
+		return slices.Insert(list, k, v)
+	}
+	copy(list[k+1:], list[k:len(list)-1])
+	list[k] = v
+	return list
+}
+
+// Merge adds the draws of o, a Summary over other draws of the same run
+// (another shard, or another piece of the draw range), to s. The result
+// is the Summary of one run over both sets of draws, whatever the order of
+// merging. It fails, leaving s unchanged, when o is s or when both list
+// the same draw (they overlap).
+func (s *Summary) Merge(o *Summary) error {
+	switch {
+	case o == nil:
+		return errors.New("certify: merge with a nil summary")
+	case o == s:
+		return errors.New("certify: merge of a summary with itself")
+	}
+	for _, d := range o.listed {
+		if _, dup := slices.BinarySearchFunc(s.listed, d.Draw, func(e Disagreeing, i int) int { return cmp.Compare(e.Draw, i) }); dup {
+			return fmt.Errorf("certify: merge: draw %d is in both summaries", d.Draw)
+		}
+	}
+	s.init()
+	s.seen += o.seen
+	s.checked += o.checked
+	s.certified += o.certified
+	s.unresolved += o.unresolved
+	s.evals += o.evals
+	s.maxWidth = max(s.maxWidth, o.maxWidth)
+	for k, v := range o.all {
+		s.all[k] += v
+	}
+	for k, v := range o.cert {
+		s.cert[k] += v
+	}
+	s.disagreed += o.disagreed
+	for _, d := range o.listed {
+		s.listed = keepFirst(s.listed, d, MaxListed, func(d Disagreeing) int { return d.Draw })
+	}
+	for k, ol := range o.kinds {
+		l := s.kinds[k]
+		if l == nil {
+			l = &listed{}
+			s.kinds[k] = l
+		}
+		l.n += ol.n
+		for _, i := range ol.first {
+			l.first = keepFirst(l.first, i, maxFirst, func(i int) int { return i })
+		}
+	}
+	return nil
+}
+
+// Scan pattern codes: a leading 1 bit, then 3 bits per equilibrium, as
+// the engine's regimes (assess) name them.
+const (
+	codeStable = iota + 1
+	codeUnstable
+	codeSemiBelow
+	codeSemiAbove
+	codeDegenerate
+	codeSemi // semistable, side not known
+	numCodes
+)
+
+var codeNames = [numCodes]string{"", "stable", "unstable", "semistable-below", "semistable-above", "degenerate", "semistable"}
+
+// patternCode encodes the scan's ordered classes, with the sides of the
+// semistable ones (sides, ExSides) when known, without allocating: a
+// leading 1 bit, then 3 bits per equilibrium, for up to 20 equilibria; 0
+// for more.
+func patternCode(p []steady.Class, sides uint64, known bool) uint64 {
 	if len(p) > 20 {
 		return 0
 	}
 	key := uint64(1)
-	for _, c := range p {
-		key = key<<3 | uint64(c)&7
+	for i, c := range p {
+		code := uint64(codeDegenerate)
+		switch c {
+		case steady.Stable:
+			code = codeStable
+		case steady.Unstable:
+			code = codeUnstable
+		case steady.Semistable:
+			switch {
+			case !known:
+				code = codeSemi
+			case sides>>i&1 == 1:
+				code = codeSemiAbove
+			default:
+				code = codeSemiBelow
+			}
+		}
+		key = key<<3 | code
 	}
 	return key
 }
 
+// validCode reports whether key is a pattern code patternCode can return.
+func validCode(key uint64) bool {
+	if key == 0 {
+		return true
+	}
+	n := bits.Len64(key) - 1
+	if n%3 != 0 || n > 60 {
+		return false
+	}
+	for ; key > 1; key >>= 3 {
+		if c := key & 7; c == 0 || c >= numCodes {
+			return false
+		}
+	}
+	return true
+}
+
 // scanPattern names a pattern code's classes as the engine's regimes do
-// ("stable", "unstable", "degenerate"); a semistable equilibrium, whose
-// side the record does not keep, is "semistable".
+// ("stable", "unstable", "semistable-below", "semistable-above",
+// "degenerate"); "semistable" when the side is not known.
 func scanPattern(key uint64) []string {
 	if key == 0 {
 		return []string{"more than 20 equilibria"}
 	}
 	p := []string{}
 	for ; key > 1; key >>= 3 {
-		p = append(p, steady.Class(key&7).String())
+		p = append(p, codeNames[key&7])
 	}
 	slices.Reverse(p)
 	return p
+}
+
+// validCert reports whether key is a certified pattern key.
+func validCert(key [2]uint64) bool {
+	return key == [2]uint64{0, 1} || key[0] <= 52 && key[1] < 1<<key[0]
 }
 
 // certPattern names the certified roots' classes in order.
@@ -155,9 +300,11 @@ type Result struct {
 	Unresolved int64
 	MaxWidth   float64
 	// Regimes are the ordered patterns of classes over all checked draws
-	// (from the scan), CertifiedRegimes those over certified draws alone
-	// (from the certification, where every root is proven), each with its
-	// probability among its own draws.
+	// (from the scan, named as the engine's regimes, with the attracting
+	// side of a semistable equilibrium from the hook's ExSides:
+	// "semistable" alone when it is not known), CertifiedRegimes those
+	// over certified draws alone (from the certification, where every
+	// root is proven), each with its probability among its own draws.
 	Regimes, CertifiedRegimes []assess.Regime
 	// Disagreeing counts the draws where scan and certification disagree;
 	// ByKind counts them by kind with the first draw indices; Listed gives

@@ -59,8 +59,9 @@
 //     rounding (Moore 1966), enclosing f, and with interval dual numbers
 //     f', over a whole box of x (interval.go, intervaleval.go), with
 //     monotone pieces for the functions, a monotonicity rule for
-//     saturating terms k·u/(c + u) and a record of whether f is continuous
-//     on the box; package certify builds proofs on them.
+//     saturating terms k·u/(c + u) (with a closer form of their
+//     derivative) and a record of whether f is continuous on the box;
+//     package certify builds proofs on them.
 //
 // The function run is the single definition of the float semantics of each
 // instruction (constant folding uses it too), and walk visits a syntax

@@ -291,27 +291,75 @@ func BenchmarkIntervalPoint(b *testing.B) {
 	sink = s.Lo
 }
 
+// The derivative of the Hill term x^q/(1 + x^q), q = 4, is
+// g(x) = 4x³/(1 + x⁴)², which decreases for x > (3/5)^(1/4) ≈ 0.88
+// (elementary calculus: g'(x) has the sign of 3(1 + x⁴) − 8x⁴). On
+// [1, 1.156] its range is [g(1.156), g(1)] = [0.7957…, 1]; the enclosure
+// h(1 − h)·q/x of the saturating rule is within a few per cent of it,
+// where the general quotient rule gives about five times the width.
+func TestIntervalSaturatingTight(t *testing.T) {
+	p := mustCompile(t, "c*x^q/(b^q + x^q)", Env{State: "x", Params: []string{"b", "c", "q"}})
+	m := p.NewMachine()
+	g := func(x float64) float64 { return 4 * x * x * x / ((1 + x*x*x*x) * (1 + x*x*x*x)) }
+	box := Interval{1, 1.156}
+	_, df, cont := m.IntervalSlope(box, []float64{1, 1, 4})
+	lo, hi := g(box.Hi), g(box.Lo)
+	if !cont || df.Lo > lo || df.Hi < hi {
+		t.Fatalf("derivative enclosure %v misses [%v, %v]", df, lo, hi)
+	}
+	if w := df.Hi - df.Lo; w > 1.05*(hi-lo) {
+		t.Errorf("derivative enclosure %v of width %v, range width %v", df, w, hi-lo)
+	}
+}
+
 // TestIntervalSaturating checks the monotone rule for k·u/(c + u) terms
 // (findSat) against the math/big reference, with c of either sign, c
 // depending on x, u negative, and boxes where the rule's conditions fail.
 func TestIntervalSaturating(t *testing.T) {
 	rng := rand.New(rand.NewPCG(23, 29))
 	env := Env{State: "x", Params: []string{"a", "b", "c", "q"}}
-	srcs := []string{
-		"a*x/(b + x)",                 // Michaelis–Menten
-		"x/(x + b)",                   // order of the sum
-		"c*x^q/(b^q + x^q)",           // Hill
-		"(x - 2)/(b + (x - 2))",       // u of either sign
-		"x/(x + (-b))",                // c < 0
-		"2*exp(x)/(1 + exp(x))",       // constant factor, Arrhenius-like
-		"x/(x + x^2) + x^2/(a + x^2)", // c depending on x
-		"a*x/(b + x) - c*x",           // inside a larger law
+	cases := []struct {
+		src string
+		// logForm: the derivative's form h(1 − h)·u'/u applies (u a
+		// power or an exponential, with or without a factor); skip: the
+		// product k·u is skipped on boxes, and run where the rule does
+		// not apply.
+		logForm, skip bool
+	}{
+		{"a*x/(b + x)", false, true},                 // Michaelis–Menten
+		{"x/(x + b)", false, false},                  // order of the sum
+		{"c*x^q/(b^q + x^q)", true, true},            // Hill
+		{"(x - 2)/(b + (x - 2))", false, false},      // u of either sign
+		{"x/(x + (-b))", false, false},               // c < 0
+		{"2*exp(x)/(1 + exp(x))", true, true},        // constant factor, Arrhenius-like
+		{"x/(x + x^2) + x^2/(a + x^2)", true, false}, // c depending on x
+		{"a*x/(b + x) - c*x", false, true},           // inside a larger law
+		{"c*(a*x^q)/(b + a*x^q)", true, true},
+		{"q*x^a/(b + x^a)", true, true}, // non-integer exponent, x < 0 on some boxes
+		{"a*exp(q*x - 3)/(b + exp(q*x - 3))", true, true},
+		{"c*(a*exp(-x))/(b + a*exp(-x))", true, true},
+		{"x^q/(x^q + (-b))", true, false},        // c < 0: u + c changes sign on some boxes
+		{"a*(x - 2)/(b + (x - 2))", false, true}, // u of either sign: k·u run on such boxes
+		// Integer powers, lowered to products (x of either sign).
+		{"x^2/(b + x^2)", true, false}, // the budworm's predation term
+		{"c*x^3/(b + x^3)", true, true},
+		{"a*x^4/(b^4 + x^4)", true, true},
+		{"(a/x^2)/(b + a/x^2)", true, false},
+		{"c*(-x^2)/((-x^2) + (-b))", true, true},
 	}
 	n := 0
-	for _, src := range srcs {
+	for _, tc := range cases {
+		src := tc.src
 		p := mustCompile(t, src, env)
-		if !slices.ContainsFunc(p.NewMachine().iv.sat, func(s satTerm) bool { return s.ok }) {
+		sat := p.NewMachine().iv.sat
+		if !slices.ContainsFunc(sat, func(s satTerm) bool { return s.ok }) {
 			t.Errorf("%s: no saturating term recognised", src)
+		}
+		if got := slices.ContainsFunc(sat, func(s satTerm) bool { return s.ok && s.logForm }); got != tc.logForm {
+			t.Errorf("%s: logarithmic derivative form %v, want %v", src, got, tc.logForm)
+		}
+		if got := slices.ContainsFunc(sat, func(s satTerm) bool { return s.skip }); got != tc.skip {
+			t.Errorf("%s: product k·u skipped %v, want %v", src, got, tc.skip)
 		}
 		m := p.NewMachine()
 		for i := 0; i < 60; i++ {

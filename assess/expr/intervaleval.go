@@ -22,6 +22,8 @@ import (
 // defined and continuous on the whole box. The registers that do not
 // depend on x are computed once per θ (bit for bit), as Eval does.
 type ivState struct {
+	code  []instr // the program's instructions
+	def   []int32 // per register: the index in code of its instruction, or −1
 	v, d  []Interval
 	pc    powCache
 	sat   []satTerm // per xcode instruction
@@ -43,6 +45,8 @@ func (m *Machine) ivInit() {
 		s.ok[i] = true
 	}
 	s.sat = findSat(p)
+	s.code = p.code
+	s.def = defs(p)
 	for _, c := range p.consts {
 		iv := Point(c.val)
 		switch {
@@ -100,8 +104,17 @@ func (m *Machine) Interval(x Interval, theta []float64) Interval {
 	code := m.p.xcode
 	box := x.Lo != x.Hi // at a point the naive rules have no dependency to undo
 	for i := range code {
-		if box && s.sat[i].ok && s.satTerm(&code[i], &s.sat[i], false) {
-			continue
+		if box {
+			if st := &s.sat[i]; st.skip {
+				continue // the numerator k·u of a saturating term, done by it
+			} else if st.ok {
+				if s.satTerm(&code[i], st, false) {
+					continue
+				}
+				if st.num >= 0 {
+					s.step(&code[st.num])
+				}
+			}
 		}
 		s.step(&code[i])
 	}
@@ -122,8 +135,17 @@ func (m *Machine) IntervalSlope(x Interval, theta []float64) (f, df Interval, co
 	code := m.p.xcode
 	box := x.Lo != x.Hi
 	for i := range code {
-		if box && s.sat[i].ok && s.satTerm(&code[i], &s.sat[i], true) {
-			continue
+		if box {
+			if st := &s.sat[i]; st.skip {
+				continue
+			} else if st.ok {
+				if s.satTerm(&code[i], st, true) {
+					continue
+				}
+				if st.num >= 0 {
+					s.stepSlope(&code[st.num])
+				}
+			}
 		}
 		s.stepSlope(&code[i])
 	}
@@ -441,25 +463,39 @@ func (pc *powCache) powPos(a Interval, y float64, deriv bool) (w, gp Interval, o
 // −u/(u + c)², minus the sign of u) wherever c and u keep their signs and
 // u + c ≠ 0, so its range over U × C is the hull of its values at the four
 // corners (elementary calculus; the monotonicity test of Hansen & Walster,
-// Global Optimization Using Interval Analysis, 2004, applied to one node). The derivative k·(c·u' − u·c')/(u + c)² has each factor once.
+// Global Optimization Using Interval Analysis, 2004, applied to one node).
+// The derivative k·(c·u' − u·c')/(u + c)² has each factor once, but u'
+// and (u + c)² grow together: for a Hill term x^q/(m^q + x^q) on a box
+// of relative width w the quotient of their enclosures overestimates the
+// derivative's range by a relative amount of order q·w, several times the
+// range itself (TestIntervalSaturatingTight). Where c does not depend on
+// x and u is built from x by products, powers and exp, the derivative is
+// also enclosed as k·h(1 − h)·u'/u, where h(1 − h) comes from the range
+// of h and u'/u from rules that take each operand once (logD); the two
+// enclosures are intersected. On a box the product k·u is computed only
+// if the rule does not apply (satTerm.num).
 
 // satTerm marks a division instruction of the form k·u/(c + u) or
 // u/(c + u) (either order of the sum, k independent of x): the registers
-// of u, c and k (k < 0 for no factor).
+// of u, c and k (k < 0 for no factor). logForm says that u is built so
+// that its logarithmic derivative u'/u has a close enclosure (logD), which
+// gives the term's derivative a tighter form (logDeriv).
 type satTerm struct {
 	u, c, k int32
+	num     int32 // xcode index of the product k·u when only this term uses it, else −1
 	ok      bool
+	logForm bool
+	skip    bool // on a product k·u marked by a term's num: skipped on boxes
 }
+
+// maxLogDepth bounds the nesting logD follows (common practice, no
+// source: powers, products and exponentials nest a few levels deep in
+// rate laws).
+const maxLogDepth = 6
 
 // findSat finds the saturating terms among the x-dependent instructions.
 func findSat(p *Program) []satTerm {
-	def := make([]int32, p.nreg)
-	for i := range def {
-		def[i] = -1
-	}
-	for i, in := range p.code {
-		def[in.dst] = int32(i)
-	}
+	def := defs(p)
 	sat := make([]satTerm, len(p.xcode))
 	for i, in := range p.xcode {
 		if in.op != opDiv || def[in.b] < 0 {
@@ -486,15 +522,88 @@ func findSat(p *Program) []satTerm {
 			sat[i] = satTerm{u: u, c: den.b, k: k, ok: den.a != den.b}
 		case den.b:
 			sat[i] = satTerm{u: u, c: den.a, k: k, ok: den.a != den.b}
+		default:
+			continue
+		}
+		st := &sat[i]
+		st.logForm = st.u != regState && logShape(p, def, st.u, maxLogDepth)
+	}
+	// A product k·u that only its saturating term reads need not be
+	// computed on a box where the term's rule applies: the term then runs
+	// it itself, just before the general rule.
+	uses := make([]int, p.nreg)
+	for _, in := range p.code {
+		uses[in.a]++
+		if in.b != in.a {
+			uses[in.b]++
+		}
+	}
+	xidx := make([]int32, p.nreg)
+	for i := range xidx {
+		xidx[i] = -1
+	}
+	for i, in := range p.xcode {
+		xidx[in.dst] = int32(i)
+	}
+	for i := range sat {
+		st := &sat[i]
+		st.num = -1
+		if !st.ok || st.k < 0 {
+			continue
+		}
+		a := p.xcode[i].a // the numerator k·u
+		if j := xidx[a]; j >= 0 && uses[a] == 1 && a != p.out && !sat[j].ok {
+			st.num, sat[j].skip = j, true
 		}
 	}
 	return sat
+}
+
+// defs returns, per register, the index in p.code of the instruction
+// that writes it, or −1.
+func defs(p *Program) []int32 {
+	def := make([]int32, p.nreg)
+	for i := range def {
+		def[i] = -1
+	}
+	for i, in := range p.code {
+		def[in.dst] = int32(i)
+	}
+	return def
+}
+
+// logShape reports whether register r, which depends on x, is built by
+// the rules of logD: x, products and quotients (a factor or divisor may be
+// independent of x), negation, powers with an exponent independent of x,
+// and exp.
+func logShape(p *Program, def []int32, r int32, depth int) bool {
+	if r == regState {
+		return true
+	}
+	if depth == 0 || def[r] < 0 || !p.xdep[r] {
+		return false
+	}
+	in := p.code[def[r]]
+	switch in.op {
+	case opExp:
+		return true
+	case opNeg:
+		return logShape(p, def, in.a, depth-1)
+	case opPow:
+		return !p.xdep[in.b] && logShape(p, def, in.a, depth-1)
+	case opMul, opDiv:
+		return (!p.xdep[in.a] || logShape(p, def, in.a, depth-1)) &&
+			(!p.xdep[in.b] || logShape(p, def, in.b, depth-1))
+	}
+	return false
 }
 
 // satTerm evaluates a saturating term (and with deriv its derivative) by
 // the monotone rule when its conditions hold, and reports whether it did;
 // otherwise the general rules run.
 func (s *ivState) satTerm(in *instr, st *satTerm, deriv bool) bool {
+	// D is the sum instruction's enclosure ivAdd(U, C), so D excluding 0
+	// means u + c ≠ 0 on all of U × C, which the corner rule needs.
 	U, C, D := s.v[st.u], s.v[st.c], s.v[in.b]
 	if !finiteIv(U) || !finiteIv(C) || sign0(C) == 0 || !(D.Lo > 0 || D.Hi < 0) ||
 		(U.Lo < 0 && U.Hi > 0) || !s.ok[st.u] || !s.ok[st.c] {
@@ -524,15 +633,123 @@ func (s *ivState) satTerm(in *instr, st *satTerm, deriv bool) bool {
 		// k·(c·u' − u·c')/(u + c)². Registers that do not depend on x
 		// keep a zero derivative (only x-dependent instructions write s.d).
 		num := ivMul(C, s.d[st.u])
-		if dc := s.d[st.c]; dc.Lo != 0 || dc.Hi != 0 {
+		dc := s.d[st.c]
+		constC := dc.Lo == 0 && dc.Hi == 0
+		if !constC {
 			num = ivSub(num, ivMul(U, dc))
 		}
 		if st.k >= 0 {
 			num = ivMul(s.v[st.k], num)
 		}
-		s.d[in.dst], _ = ivDiv(num, ivSqr(D))
+		wd, _ := ivDiv(num, ivSqr(D))
+		if constC && st.logForm {
+			if t, ok := s.logDeriv(st, Interval{lo.Lo, hi.Hi}); ok {
+				if st.k >= 0 {
+					t = ivMul(s.v[st.k], t)
+				}
+				if v := wd.Intersect(t); !v.IsEmpty() {
+					wd = v
+				}
+			}
+		}
+		s.d[in.dst] = wd
 	}
 	return true
+}
+
+// logDeriv encloses the derivative of h = u/(u + c), c independent of x,
+// in the form h(1 − h)·u'/u: with h(1 − h) = u·c/(u + c)², this is
+// c·u'/(u + c)², the general rule, wherever u ≠ 0. H encloses h on the
+// box. Each factor is enclosed closely: h(1 − h) from the monotone pieces
+// of the parabola p(h) = h − h², and u'/u by logD, where the general
+// rule's numerator and denominator vary together and their quotient is
+// overestimated (the structure of a function used to narrow its
+// enclosure, as in the monotonicity and centred forms of Hansen &
+// Walster, Global Optimization Using Interval Analysis, 2004, ch. 3 and
+// 6). It reports false when the form does not apply on this box.
+func (s *ivState) logDeriv(st *satTerm, H Interval) (Interval, bool) {
+	L, ok := s.logD(st.u, maxLogDepth)
+	if !ok || !finiteIv(L) || L.IsEmpty() || !finiteIv(H) {
+		return Interval{}, false
+	}
+	// p(h) = h(1 − h) increases below 1/2 and decreases above.
+	pl, ph := ivMul(Point(H.Lo), ivSub(oneIv, Point(H.Lo))), ivMul(Point(H.Hi), ivSub(oneIv, Point(H.Hi)))
+	var P Interval
+	switch {
+	case H.Hi <= 0.5:
+		P = Interval{pl.Lo, ph.Hi}
+	case H.Lo >= 0.5:
+		P = Interval{ph.Lo, pl.Hi}
+	default:
+		P = Interval{math.Min(pl.Lo, ph.Lo), 0.25}
+	}
+	return ivMul(P, L), true
+}
+
+// logD encloses the logarithmic derivative r'/r of register r over the
+// box, and reports false unless r is defined, continuous and nonzero on
+// the whole box, which the rules need: x'/x = 1/x; (v·w)'/(v·w) =
+// v'/v + w'/w and (v/w)'/(v/w) = v'/v − w'/w (a factor k independent of x
+// adds k'/k = 0, and must not vanish); (−v)'/(−v) = v'/v; (v^y)'/v^y =
+// y·v'/v for v > 0 and y independent of x; exp(g)'/exp(g) = g'. Each rule
+// has each operand once, so the enclosure is as close as those of its
+// operands: for x^q it is q/x, for D·exp(E/T) it is −E/T².
+func (s *ivState) logD(r int32, depth int) (Interval, bool) {
+	if !s.ok[r] {
+		return Interval{}, false
+	}
+	if r == regState {
+		X := s.v[r]
+		if sign0(X) == 0 || !finiteIv(X) {
+			return Interval{}, false
+		}
+		q, _ := ivDiv(oneIv, X)
+		return q, true
+	}
+	if depth == 0 {
+		return Interval{}, false
+	}
+	in := &s.code[s.def[r]]
+	switch in.op {
+	case opExp:
+		return s.d[in.a], true
+	case opNeg:
+		return s.logD(in.a, depth-1)
+	case opPow:
+		A, Y := s.v[in.a], s.v[in.b]
+		if !(A.Lo > 0) || Y.Lo != Y.Hi || !finiteIv(Y) || in.bxdep {
+			return Interval{}, false
+		}
+		L, ok := s.logD(in.a, depth-1)
+		return ivScale(Y.Lo, L), ok
+	case opMul, opDiv:
+		la, ok := s.logFactor(in.a, in.axdep, depth)
+		if !ok {
+			return Interval{}, false
+		}
+		if in.a == in.b {
+			return ivScale(2, la), true // a square
+		}
+		lb, ok := s.logFactor(in.b, in.bxdep, depth)
+		switch {
+		case !ok:
+			return Interval{}, false
+		case in.op == opDiv:
+			return ivSub(la, lb), true
+		}
+		return ivAdd(la, lb), true
+	}
+	return Interval{}, false
+}
+
+// logFactor is logD for an operand of a product or quotient: 0 for one
+// independent of x, which must not vanish.
+func (s *ivState) logFactor(r int32, xdep bool, depth int) (Interval, bool) {
+	if xdep {
+		return s.logD(r, depth-1)
+	}
+	v := s.v[r]
+	return zeroIv, s.ok[r] && finiteIv(v) && sign0(v) != 0
 }
 
 func sign0(v Interval) int {
