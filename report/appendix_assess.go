@@ -25,6 +25,7 @@ func assessDocument(r *AssessJSON) *document {
 	nominalSection(d, r, symbol, unit)
 	probabilitySection(d, r, unit)
 	regimeSection(d, r)
+	certificationSection(d, r)
 	currentSection(d, r, unit)
 	resilienceSection(d, r, unit)
 	screeningDocSection(d, r)
@@ -136,8 +137,8 @@ func assessMethod(d *document, r *AssessJSON) {
 	d.pf("Probabilities are shares of the %d assessed draws with 95%% intervals: %s (Wilson 1927; Clopper & Pearson 1934). Quantiles come from a mergeable sketch with relative accuracy %s (Masson, Rim & Lee 2019). A draw that cannot be assessed is counted with its reason and left out of the shares.",
 		r.Assessed, s.Interval, g(s.QuantileAccuracy))
 	if f := r.Figures; f != nil {
-		d.pf("The figures are drawn from summaries kept during the run: the rate curve of the first %d assessed draws on %d points across the domain; each slope histogram on bins fixed from the first %d slopes (the 0.5%% to 99.5%% range widened to include zero); and the counts behind each probability at 16, 32, 64, … draws.",
-			f.Band.Draws, len(f.Band.X), f.PilotSlopes)
+		d.pf("The figures are drawn from summaries kept during the run: the rate curve of %d assessed draws (those of lowest index, up to a fixed number) on %d points across the domain; each slope histogram from a mergeable sketch of every slope, on bins over its 0.5%% to 99.5%% range widened to include zero (counts exact up to the sketch's resolution at bin edges); and the counts behind each probability at 16, 32, 64, … draws.",
+			f.Band.Draws, len(f.Band.X))
 	}
 }
 
@@ -267,6 +268,63 @@ func regimeSection(d *document, r *AssessJSON) {
 		t.rows = append(t.rows, []string{p, pctCI(g.P, g.CI, r.Assessed), fmt.Sprint(g.Count)})
 	}
 	d.table(t)
+}
+
+func certificationSection(d *document, r *AssessJSON) {
+	c := r.Certification
+	if c == nil {
+		return
+	}
+	d.h2("Certification")
+	d.pf("Every assessed draw was checked by %s. A certified draw has exactly the equilibria reported, each proven, and no other in the domain.", c.Method)
+	if c.Unresolved == 0 {
+		d.pf("Certified: %s of %d checked draws; none was left unresolved.", pctCI(c.Certified.P, c.Certified.CI, c.Checked), c.Checked)
+	} else {
+		d.pf("Certified: %s of %d checked draws. Unresolved: %s, the widest interval left %s; in those intervals the verdict comes from the higher-order test at the located point and is not certified.",
+			pctCI(c.Certified.P, c.Certified.CI, c.Checked), c.Checked, plural(c.Unresolved, "draw", "draws"), g(c.MaxWidth))
+	}
+	t := table{head: []string{"regime", "share of all checked draws", "share of certified draws"}, right: []bool{false, true, true}}
+	rows := map[string][2]string{}
+	var order []string
+	for _, g := range c.Regimes {
+		k := regimeName(g.Pattern)
+		if _, ok := rows[k]; !ok {
+			order = append(order, k)
+		}
+		rows[k] = [2]string{pctCI(g.P, g.CI, c.Checked), "–"}
+	}
+	for _, g := range c.CertifiedRegimes {
+		k := regimeName(g.Pattern)
+		v, ok := rows[k]
+		if !ok {
+			order = append(order, k)
+			v[0] = "–"
+		}
+		v[1] = pctCI(g.P, g.CI, c.Certified.Count)
+		rows[k] = v
+	}
+	for _, k := range order {
+		t.rows = append(t.rows, []string{k, rows[k][0], rows[k][1]})
+	}
+	d.table(t)
+	d.p(tx("Regimes over all checked draws come from the scan; regimes over certified draws from the certification, which proves simple roots only, so a certified draw holds attracting and repelling equilibria alone."))
+	if c.Disagreeing == 0 {
+		d.p(tx("Scan and certification agree in every checked draw."))
+		return
+	}
+	var items [][]span
+	for _, k := range c.Disagreements {
+		items = append(items, []span{tx(fmt.Sprintf("%s: %s (first: %s).", k.Reason, plural(k.Draws, "draw", "draws"), ints(k.First)))})
+	}
+	d.pf("Scan and certification disagree in %s; each is listed under Warnings with the command that replays it.", plural(c.Disagreeing, "draw", "draws"))
+	d.list(items...)
+}
+
+func regimeName(p []string) string {
+	if len(p) == 0 {
+		return "(no equilibrium)"
+	}
+	return strings.Join(p, " / ")
 }
 
 func currentSection(d *document, r *AssessJSON, unit string) {

@@ -18,11 +18,14 @@ import (
 // summaries (Figures) it is a result file that holdfast report renders.
 type AssessJSON struct {
 	Envelope
-	Draws       int    `json:"draws"`
-	Assessed    int64  `json:"assessed_draws"`
-	FailedDraws int64  `json:"failed_draws"`
-	Seed        uint64 `json:"seed"`
-	Plan        string `json:"plan"`
+	Draws       int   `json:"draws"`
+	Assessed    int64 `json:"assessed_draws"`
+	FailedDraws int64 `json:"failed_draws"`
+	// FaultedDraws counts the assessed draws that met numeric trouble
+	// (listed in Faults by reason).
+	FaultedDraws int64  `json:"faulted_draws"`
+	Seed         uint64 `json:"seed"`
+	Plan         string `json:"plan"`
 	// Settings, Model and Nominal describe the run for a report's inputs,
 	// method and nominal sections.
 	Settings    *SettingsJSON   `json:"settings"`
@@ -38,6 +41,9 @@ type AssessJSON struct {
 	Warnings    []string        `json:"warnings"`
 	// Sensitivity holds the screening measures (see NewScreeningJSON).
 	Sensitivity *ScreeningJSON `json:"sensitivity,omitempty"`
+	// Certification holds the interval certification of every draw
+	// (holdfast assess --certify; absent without it).
+	Certification *CertificationJSON `json:"certification,omitempty"`
 	// Figures holds the summaries the report's plots are drawn from.
 	Figures *FiguresJSON `json:"figures"`
 	// Requirements holds the --require gates judged on this result.
@@ -158,18 +164,19 @@ func countedJSON(cs []assess.Counted) []CountedJSON {
 // NewAssessJSON converts a Monte Carlo result for JSON output.
 func NewAssessJSON(version, scenario, title string, r *assess.Result) *AssessJSON {
 	out := &AssessJSON{
-		Envelope:    newEnvelope(KindAssess, version, scenario, title),
-		Draws:       r.Draws,
-		Assessed:    r.Succeeded,
-		FailedDraws: int64(r.Draws) - r.Succeeded,
-		Nominal:     newNominalJSON(r.Nominal),
-		Seed:        r.Seed,
-		Plan:        r.Plan.String(),
-		Equilibria:  []TrackedJSON{},
-		Regimes:     []RegimeJSON{},
-		Untracked:   probJSON(r.Untracked),
-		Failures:    countedJSON(r.Failed),
-		Faults:      countedJSON(r.Faults),
+		Envelope:     newEnvelope(KindAssess, version, scenario, title),
+		Draws:        r.Draws,
+		Assessed:     r.Succeeded,
+		FailedDraws:  int64(r.Draws) - r.Succeeded,
+		FaultedDraws: r.Faulted,
+		Nominal:      newNominalJSON(r.Nominal),
+		Seed:         r.Seed,
+		Plan:         r.Plan.String(),
+		Equilibria:   []TrackedJSON{},
+		Regimes:      []RegimeJSON{},
+		Untracked:    probJSON(r.Untracked),
+		Failures:     countedJSON(r.Failed),
+		Faults:       countedJSON(r.Faults),
 		Convergence: ConvergenceJSON{
 			TargetHalfWidth: num(r.Convergence.Target),
 			Reached:         r.Convergence.Reached,
@@ -201,10 +208,7 @@ func NewAssessJSON(version, scenario, title string, r *assess.Result) *AssessJSO
 			BarrierQuantile: quantilesJSON(t.Barrier),
 		})
 	}
-	for _, g := range r.Regimes {
-		p := probJSON(g.P)
-		out.Regimes = append(out.Regimes, RegimeJSON{Pattern: g.Pattern, P: p.P, CI: p.CI, Count: p.Count})
-	}
+	out.Regimes = regimesJSON(r.Regimes)
 	if r.Outcomes != nil {
 		c := &OutcomesJSON{X: r.Nominal.Current.From}
 		for _, o := range r.Outcomes {
@@ -212,6 +216,15 @@ func NewAssessJSON(version, scenario, title string, r *assess.Result) *AssessJSO
 			c.Outcomes = append(c.Outcomes, OutcomeJSON{Label: o.Label, P: p.P, CI: p.CI, Count: p.Count})
 		}
 		out.Current = c
+	}
+	return out
+}
+
+func regimesJSON(rs []assess.Regime) []RegimeJSON {
+	out := []RegimeJSON{}
+	for _, g := range rs {
+		p := probJSON(g.P)
+		out = append(out, RegimeJSON{Pattern: g.Pattern, P: p.P, CI: p.CI, Count: p.Count})
 	}
 	return out
 }
@@ -254,6 +267,12 @@ func AssessTableScreened(w io.Writer, title, unit string, r *assess.Result, s *s
 // AssessTableGated is AssessTableScreened with the verdicts of judged
 // requirements (painted by p) before the caution.
 func AssessTableGated(w io.Writer, title, unit string, r *assess.Result, s *sensitivity.Screening, outs []gate.Outcome, p Painter) error {
+	return AssessTableCertified(w, title, unit, r, s, nil, outs, p)
+}
+
+// AssessTableCertified is AssessTableGated with the summary of the
+// interval certification c (none when c is nil).
+func AssessTableCertified(w io.Writer, title, unit string, r *assess.Result, s *sensitivity.Screening, c *CertificationJSON, outs []gate.Outcome, p Painter) error {
 	if title != "" {
 		fmt.Fprintf(w, "%s\n", title)
 	}
@@ -311,6 +330,9 @@ func AssessTableGated(w io.Writer, title, unit string, r *assess.Result, s *sens
 		if err := t.Render(); err != nil {
 			return err
 		}
+	}
+	if err := certificationLines(w, c); err != nil {
+		return err
 	}
 	if s != nil {
 		if err := screeningSection(w, s); err != nil {

@@ -205,7 +205,7 @@ func limitsSection(d *document, extra ...string) {
 func reproductionSection(d *document, env *Envelope, text string, m *ModelJSON) {
 	d.h2("Reproduction")
 	if len(env.Command) > 0 {
-		d.p(tx("The command that produced this result (the number of workers, which never changes a result, is left out):"))
+		d.p(tx("The command that produced this result (flags that never change a result, such as the number of workers, output files, shards and checkpoints, are left out):"))
 		d.code("sh", commandText(env.Command))
 	}
 	d.pf("holdfast %s, result schema %d. Draw i depends only on the seed and i, so the same command on the same scenario gives the same numbers.", env.Version, env.Schema)

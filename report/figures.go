@@ -20,9 +20,6 @@ type FiguresJSON struct {
 	// Running holds the counts behind every probability at checkpoints of
 	// 16·2^k draws and at the end.
 	Running []CheckpointJSON `json:"running"`
-	// PilotSlopes is the number of first slopes that fixed each
-	// histogram's bins.
-	PilotSlopes int `json:"pilot_slopes"`
 }
 
 // BandJSON is f(x) over the band's draws at each grid point X: the 5, 25,
@@ -81,10 +78,9 @@ func NewFiguresJSON(s *summary.Summary) *FiguresJSON {
 			Draws: s.BandDraws, X: nonNil(s.Grid), N: []int64{}, Undefined: []int64{},
 			Q5: []*float64{}, Q25: []*float64{}, Q50: []*float64{}, Q75: []*float64{}, Q95: []*float64{},
 		},
-		Nominal:     CurveJSON{X: nonNil(s.NominalX), F: []*float64{}},
-		Slopes:      []HistogramJSON{},
-		Running:     []CheckpointJSON{},
-		PilotSlopes: s.Config.PilotDraws,
+		Nominal: CurveJSON{X: nonNil(s.NominalX), F: []*float64{}},
+		Slopes:  []HistogramJSON{},
+		Running: []CheckpointJSON{},
 	}
 	for _, b := range s.Band {
 		f.Band.N = append(f.Band.N, b.N)

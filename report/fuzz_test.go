@@ -2,7 +2,12 @@ package report
 
 import (
 	"io"
+	"os"
+	"path/filepath"
 	"testing"
+
+	"holdfast/assess"
+	"holdfast/assess/study"
 )
 
 // FuzzLoadResult checks that reading a result file never panics, and
@@ -32,5 +37,38 @@ func FuzzLoadResult(f *testing.F) {
 		if err := WriteHTML(io.Discard, s, false); err != nil {
 			t.Fatal(err)
 		}
+	})
+}
+
+func FuzzLoadPart(f *testing.F) {
+	// The path of holdfast merge and --resume: a part file is read, its
+	// scenario parsed again and its state restored; none may panic, and
+	// every error of the loader is a *ResultError.
+	if seed, err := os.ReadFile(filepath.Join("testdata", "part-tank.json")); err == nil {
+		f.Add(seed)
+	}
+	f.Add([]byte(`{"format": "holdfast-result", "schema": 1, "kind": "partial", "scenario_sha256": "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855", "scenario_text": "", "run": {"shards": 1}, "state": {"engine": {"draws": 0, "planned": 0, "shards": 1, "regimes": [], "tracked": [], "outcomes": [0, 0, 0, 0, 0]}}}`))
+	f.Add([]byte(`{"format": "holdfast-result", "schema": 1, "kind": "checkpoint"}`))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		p, err := LoadPart(data, KindPart)
+		if err != nil {
+			if _, ok := err.(*ResultError); !ok {
+				t.Fatalf("error of type %T: %v", err, err)
+			}
+			return
+		}
+		s, err := p.Parse()
+		if err != nil {
+			return
+		}
+		m, err := assess.Compile(s)
+		if err != nil {
+			return
+		}
+		st, err := study.New(m, study.Config{Certify: p.Run.Certify})
+		if err != nil {
+			return
+		}
+		st.Restore(p.State)
 	})
 }

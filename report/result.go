@@ -274,17 +274,9 @@ const MaxResultBytes = 256 << 20
 
 // ReadResult reads and checks a result file (see LoadResult).
 func ReadResult(path string) (*Saved, error) {
-	f, err := os.Open(path)
+	data, err := readFile(path, "result")
 	if err != nil {
-		return nil, &ResultError{File: path, Msg: strings.TrimPrefix(err.Error(), "open "+path+": ")}
-	}
-	defer f.Close()
-	if fi, err := f.Stat(); err == nil && fi.IsDir() {
-		return nil, &ResultError{File: path, Msg: "is a directory, not a result file"}
-	}
-	data, err := io.ReadAll(io.LimitReader(f, MaxResultBytes+1))
-	if err != nil {
-		return nil, &ResultError{File: path, Msg: err.Error()}
+		return nil, err
 	}
 	s, err := LoadResult(data)
 	if err != nil {
@@ -297,6 +289,24 @@ func ReadResult(path string) (*Saved, error) {
 	return s, nil
 }
 
+// readFile reads a file of at most MaxResultBytes; errors are
+// *ResultError naming the file.
+func readFile(path, what string) ([]byte, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, &ResultError{File: path, Msg: strings.TrimPrefix(err.Error(), "open "+path+": ")}
+	}
+	defer f.Close()
+	if fi, err := f.Stat(); err == nil && fi.IsDir() {
+		return nil, &ResultError{File: path, Msg: "is a directory, not a " + what + " file"}
+	}
+	data, err := io.ReadAll(io.LimitReader(f, MaxResultBytes+1))
+	if err != nil {
+		return nil, &ResultError{File: path, Msg: err.Error()}
+	}
+	return data, nil
+}
+
 // LoadResult decodes and checks a result file: it must be a holdfast
 // result ("format": "holdfast-result") of a schema this holdfast reads,
 // complete, of a kind it renders, with an embedded scenario text that
@@ -304,53 +314,16 @@ func ReadResult(path string) (*Saved, error) {
 // error is a *ResultError.
 func LoadResult(data []byte) (*Saved, error) {
 	bad := func(format string, a ...any) error { return &ResultError{Msg: fmt.Sprintf(format, a...)} }
-	if len(data) > MaxResultBytes {
-		return nil, bad("larger than %d MiB: not a holdfast result file", MaxResultBytes>>20)
-	}
-	trimmed := bytes.TrimSpace(data)
-	if len(trimmed) == 0 {
-		return nil, bad("empty file: not a holdfast result file")
-	}
-	if !json.Valid(trimmed) {
-		var v any
-		err := json.Unmarshal(trimmed, &v)
-		if trimmed[0] == '{' && (errors.Is(err, io.ErrUnexpectedEOF) || strings.Contains(fmt.Sprint(err), "unexpected end of JSON input")) {
-			return nil, bad("truncated: the JSON ends before the result is complete")
-		}
-		if trimmed[0] == '{' {
-			return nil, bad("malformed JSON (%v): not a holdfast result file, or damaged", err)
-		}
-		return nil, bad("not JSON: not a holdfast result file")
-	}
-	var probe struct {
-		Format         *string `json:"format"`
-		Schema         any     `json:"schema"`
-		Kind           string  `json:"kind"`
-		Tool           string  `json:"tool"`
-		ScenarioSHA256 string  `json:"scenario_sha256"`
-		ScenarioText   *string `json:"scenario_text"`
-	}
-	if trimmed[0] != '{' || json.Unmarshal(trimmed, &probe) != nil {
-		return nil, bad("not a holdfast result file (want a JSON object with \"format\": %q)", ResultFormat)
-	}
-	if probe.Format == nil {
-		if probe.Tool == "holdfast" {
-			return nil, bad("written by an older holdfast, before result files carried a schema version; run the command again to save a result that holdfast report can read")
-		}
-		return nil, bad("not a holdfast result file (no \"format\": %q marker)", ResultFormat)
-	}
-	if *probe.Format != ResultFormat {
-		return nil, bad("not a holdfast result file (format %q, want %q)", *probe.Format, ResultFormat)
-	}
-	schema, ok := probe.Schema.(float64)
-	if !ok || schema != math.Trunc(schema) || schema < 1 {
-		return nil, bad("result schema %v is not a schema version", jsonText(probe.Schema))
-	}
-	if schema > SchemaVersion {
-		return nil, bad("written by a newer holdfast (result schema %v; this holdfast reads schema %d and older): use a newer holdfast", schema, SchemaVersion)
+	trimmed, probe, err := probeResult(data)
+	if err != nil {
+		return nil, err
 	}
 	switch probe.Kind {
 	case KindAssess, KindSensitivity, KindSweep:
+	case KindPart:
+		return nil, bad("is one part of a sharded run, not a result: merge all the parts with holdfast merge, then render the merged result")
+	case KindCheckpoint:
+		return nil, bad("is the checkpoint of an unfinished run, not a result: finish the run with its command and --resume")
 	case KindEquilibria:
 		return nil, bad("holdfast report does not render equilibria results (the JSON of holdfast equilibria): it renders the results of assess, sensitivity and sweep saved with --out; for a report that includes the equilibria at nominal values, run holdfast assess with --report")
 	default:
@@ -364,7 +337,6 @@ func LoadResult(data []byte) (*Saved, error) {
 			short(probe.ScenarioSHA256), short(got))
 	}
 	s := &Saved{Kind: probe.Kind}
-	var err error
 	switch probe.Kind {
 	case KindAssess:
 		s.Assess = &AssessJSON{}
@@ -393,6 +365,62 @@ func LoadResult(data []byte) (*Saved, error) {
 		return nil, bad("malformed %s result: %v", probe.Kind, err)
 	}
 	return s, nil
+}
+
+// resultProbe is the head of a result file.
+type resultProbe struct {
+	Format         *string `json:"format"`
+	Schema         any     `json:"schema"`
+	Kind           string  `json:"kind"`
+	Tool           string  `json:"tool"`
+	ScenarioSHA256 string  `json:"scenario_sha256"`
+	ScenarioText   *string `json:"scenario_text"`
+}
+
+// probeResult checks what every holdfast result file shares: JSON, the
+// format marker, a schema this holdfast reads. It returns the trimmed
+// data and the file's head.
+func probeResult(data []byte) ([]byte, *resultProbe, error) {
+	bad := func(format string, a ...any) error { return &ResultError{Msg: fmt.Sprintf(format, a...)} }
+	if len(data) > MaxResultBytes {
+		return nil, nil, bad("larger than %d MiB: not a holdfast result file", MaxResultBytes>>20)
+	}
+	trimmed := bytes.TrimSpace(data)
+	if len(trimmed) == 0 {
+		return nil, nil, bad("empty file: not a holdfast result file")
+	}
+	if !json.Valid(trimmed) {
+		var v any
+		err := json.Unmarshal(trimmed, &v)
+		if trimmed[0] == '{' && (errors.Is(err, io.ErrUnexpectedEOF) || strings.Contains(fmt.Sprint(err), "unexpected end of JSON input")) {
+			return nil, nil, bad("truncated: the JSON ends before the result is complete")
+		}
+		if trimmed[0] == '{' {
+			return nil, nil, bad("malformed JSON (%v): not a holdfast result file, or damaged", err)
+		}
+		return nil, nil, bad("not JSON: not a holdfast result file")
+	}
+	probe := &resultProbe{}
+	if trimmed[0] != '{' || json.Unmarshal(trimmed, probe) != nil {
+		return nil, nil, bad("not a holdfast result file (want a JSON object with \"format\": %q)", ResultFormat)
+	}
+	if probe.Format == nil {
+		if probe.Tool == "holdfast" {
+			return nil, nil, bad("written by an older holdfast, before result files carried a schema version; run the command again to save a result that holdfast report can read")
+		}
+		return nil, nil, bad("not a holdfast result file (no \"format\": %q marker)", ResultFormat)
+	}
+	if *probe.Format != ResultFormat {
+		return nil, nil, bad("not a holdfast result file (format %q, want %q)", *probe.Format, ResultFormat)
+	}
+	schema, ok := probe.Schema.(float64)
+	if !ok || schema != math.Trunc(schema) || schema < 1 {
+		return nil, nil, bad("result schema %v is not a schema version", jsonText(probe.Schema))
+	}
+	if schema > SchemaVersion {
+		return nil, nil, bad("written by a newer holdfast (result schema %v; this holdfast reads schema %d and older): use a newer holdfast", schema, SchemaVersion)
+	}
+	return trimmed, probe, nil
 }
 
 func short(h string) string {
@@ -430,8 +458,11 @@ func okPtr(v *float64) bool { return v == nil || okCoord(*v) }
 // check validates an assess result read back, so that rendering can
 // trust its shapes and ranges.
 func (d *AssessJSON) check() error {
-	if d.Draws < 0 || d.Assessed < 0 || d.Assessed > int64(d.Draws) || d.FailedDraws < 0 {
+	if d.Draws < 0 || d.Assessed < 0 || d.Assessed > int64(d.Draws) || d.FailedDraws < 0 || d.FaultedDraws < 0 || d.FaultedDraws > d.Assessed {
 		return inconsistent("draw counts (draws %d, assessed %d)", d.Draws, d.Assessed)
+	}
+	if err := d.Certification.check(); err != nil {
+		return err
 	}
 	probs := func(what string, p float64, ci [2]float64) error {
 		if !okProb(p) || !okProb(ci[0]) || !okProb(ci[1]) || ci[0] > ci[1] {
@@ -564,6 +595,9 @@ func (f *FiguresJSON) check(nTracked int) error {
 
 // check validates a sensitivity result read back.
 func (d *SensitivityJSON) check() error {
+	if d.FaultedDraws < 0 || d.FaultedDraws > int64(d.Runs) {
+		return inconsistent("faulted runs %d of %d", d.FaultedDraws, d.Runs)
+	}
 	if len(d.Chart.Bars) > len(d.Indices)+1000 {
 		return inconsistent("%d bars", len(d.Chart.Bars))
 	}
@@ -591,6 +625,14 @@ func (d *SweepJSON) check() error {
 	c := &d.Critical
 	if d.Draws < 0 || c.N < 0 || c.N > int64(d.Draws) || d.FailedDraws < 0 {
 		return inconsistent("draw counts (draws %d, assessed %d)", d.Draws, c.N)
+	}
+	if d.FaultedDraws < 0 || d.FaultedDraws > int64(d.Draws)*int64(max(len(d.Curve), 1)) {
+		return inconsistent("faulted draws %d", d.FaultedDraws)
+	}
+	for _, p := range d.Curve {
+		if p.FaultedDraws < 0 || p.FaultedDraws > int64(d.Draws) {
+			return inconsistent("curve point faulted draws %d", p.FaultedDraws)
+		}
 	}
 	for k, n := range c.Counts {
 		if n < 0 || n > int64(d.Draws) {

@@ -7,23 +7,13 @@ import (
 	"testing"
 
 	"holdfast/assess"
+	"holdfast/internal/testscenario"
 	"holdfast/sample"
 )
 
-// faultSrc is logistic growth with harvest H and a small term log(x − c)
-// whose threshold c is uncertain: log(x − c) is undefined for x ≤ c, so
-// the rate law has an undefined stretch [0, c] in the domain exactly in
-// the draws with c > 0, whatever the harvest (illustrative numbers).
-const faultSrc = `holdfast: 1
-title: harvested stock with an undefined stretch (illustrative numbers)
-state: {symbol: x, domain: [0, 6]}
-rate: "r*x*(1 - x/K) - H + 0.01*log(x - c)"
-parameters:
-  r: {dist: uniform, min: 0.8, max: 1.2}
-  K: {value: 4}
-  H: {value: 0.5}
-  c: {dist: uniform, min: -1, max: 0.4, nominal: -0.5}
-`
+// faultSrc has an undefined stretch inside the domain in about 0.4/1.4
+// of the draws (see testscenario.UndefinedStretch).
+const faultSrc = testscenario.UndefinedStretch
 
 // faultWarnings returns the warnings on numeric trouble above 0.1%.
 func faultWarnings(ws []string) []string {

@@ -51,6 +51,8 @@ func TestBadCatalogueThroughCommands(t *testing.T) {
 		for _, cmd := range [][]string{
 			{"equilibria", file},
 			{"assess", file, "--draws", "10", "--out", filepath.Join(outDir, "r.json"), "--draws-csv", filepath.Join(outDir, "d.csv")},
+			{"assess", file, "--draws", "10", "--certify", "--shard", "1/2", "--out", filepath.Join(outDir, "part-{shard}.json")},
+			{"assess", file, "--draws", "10", "--checkpoint", filepath.Join(outDir, "state.json"), "--report", filepath.Join(outDir, "r.html")},
 		} {
 			stdout, stderr, code := holdfast(t, cmd...)
 			if code != exitBad {

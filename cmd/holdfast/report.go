@@ -119,6 +119,9 @@ type reportFlags struct {
 	png     bool
 }
 
+// any reports whether a report or plots were asked for.
+func (r *reportFlags) any() bool { return len(r.reports) > 0 || r.plots != "" || r.png }
+
 func (r *reportFlags) add(f *pflag.FlagSet) {
 	f.StringArrayVar(&r.reports, "report", nil, "also write a report: FILE.md (Markdown, plots in FILE-plots/) or FILE.html (self-contained); repeatable")
 	f.StringVar(&r.plots, "plots", "", "write the report's plots as SVG files into this folder")
@@ -184,16 +187,24 @@ func painter(w io.Writer) report.Painter {
 	return report.Painter{On: ok && term.IsTerminal(int(f.Fd()))}
 }
 
+// outputOnly are the flags that never change a result: the worker count,
+// where outputs go and how they look, and how the run is split or saved.
+// commandLine leaves them out, so that the recorded command is the same
+// for one run, its shards merged, and a run resumed from a checkpoint.
+var outputOnly = map[string]bool{
+	"workers": true, "out": true, "report": true, "plots": true, "png": true, "format": true,
+	"quiet": true, "draws-csv": true, "shard": true, "checkpoint": true, "resume": true, "checkpoint-every": true,
+}
+
 // commandLine reconstructs the command line for the result file: the
 // command path, the arguments, then every flag given (in name order, each
-// value of a repeated flag as given), leaving out --workers, which never
-// changes a result.
+// value of a repeated flag as given), leaving out the outputOnly ones.
 func commandLine(cmd *cobra.Command, args []string) []string {
 	words := strings.Fields(cmd.CommandPath())
 	words = append(words, args...)
 	var names []string
 	cmd.Flags().Visit(func(f *pflag.Flag) {
-		if f.Name != "workers" {
+		if !outputOnly[f.Name] {
 			names = append(names, f.Name)
 		}
 	})

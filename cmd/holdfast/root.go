@@ -28,6 +28,6 @@ defer to local codes, standards and licensed practice.`,
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return badInput(err)
 	})
-	root.AddCommand(newEquilibriaCmd(), newAssessCmd(), newSensitivityCmd(), newSweepCmd(), newDemosCmd(), newReportCmd())
+	root.AddCommand(newEquilibriaCmd(), newAssessCmd(), newSensitivityCmd(), newSweepCmd(), newDemosCmd(), newReportCmd(), newMergeCmd())
 	return root
 }

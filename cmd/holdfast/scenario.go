@@ -25,6 +25,12 @@ func loadModel(arg string, sets []string) (*assess.Model, error) {
 	if err != nil {
 		return nil, badInput(err)
 	}
+	return compileWithSets(s, sets)
+}
+
+// compileWithSets applies --set overrides to a scenario and compiles it.
+// Every error is bad input.
+func compileWithSets(s *scenarios.Scenario, sets []string) (*assess.Model, error) {
 	for _, kv := range sets {
 		name, val, ok := strings.Cut(kv, "=")
 		if !ok {

@@ -6,23 +6,59 @@ import (
 	"os/exec"
 	"path/filepath"
 	"strings"
+	"sync"
 	"syscall"
 	"testing"
 	"time"
 )
 
+// binary builds the holdfast binary once per test process, for the tests
+// that run it as separate processes, and returns its path.
+func binary(t *testing.T) string {
+	t.Helper()
+	if testing.Short() {
+		t.Skip("builds the binary")
+	}
+	build.Do(func() {
+		dir, err := os.MkdirTemp("", "holdfast-test-bin-")
+		if err != nil {
+			build.err = err
+			return
+		}
+		build.dir = dir
+		build.path = filepath.Join(dir, "holdfast")
+		if out, err := exec.Command("go", "build", "-o", build.path, ".").CombinedOutput(); err != nil {
+			build.err = err
+			build.out = out
+		}
+	})
+	if build.err != nil {
+		t.Fatalf("build: %v\n%s", build.err, build.out)
+	}
+	return build.path
+}
+
+var build struct {
+	sync.Once
+	dir, path string
+	out       []byte
+	err       error
+}
+
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if build.dir != "" {
+		os.RemoveAll(build.dir)
+	}
+	os.Exit(code)
+}
+
 func TestTerminatedRunLeavesNoOutput(t *testing.T) {
 	// A run stopped by SIGTERM must end within a second and leave none of
 	// its output files or folders (common practice for batch tools, no
 	// source).
-	if testing.Short() {
-		t.Skip("builds the binary")
-	}
 	dir := t.TempDir()
-	bin := filepath.Join(dir, "holdfast")
-	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
-		t.Fatalf("build: %v\n%s", err, out)
-	}
+	bin := binary(t)
 	work := filepath.Join(dir, "work")
 	if err := os.Mkdir(work, 0o755); err != nil {
 		t.Fatal(err)

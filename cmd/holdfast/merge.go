@@ -1,0 +1,114 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"holdfast/assess"
+	"holdfast/assess/gate"
+	"holdfast/assess/study"
+	"holdfast/report"
+	"holdfast/sample"
+)
+
+func newMergeCmd() *cobra.Command {
+	var (
+		out, format string
+		quiet       bool
+		rf          reportFlags
+	)
+	c := &cobra.Command{
+		Use:   "merge PART.json... --out RESULT.json",
+		Short: "Combine the part files of a sharded assess run into its result",
+		Long: `merge combines the part files written by holdfast assess --shard K/N into
+the result of the whole run: exactly the JSON that one holdfast assess run
+with the same settings writes, quantiles included, whatever the number of
+shards or machines.
+
+The parts must be the N shards of one run, each exactly once: the same
+holdfast version, scenario text, --set values, draws, seed, plan,
+--certify and --require settings, and shard count. merge names the file
+and the setting that differ, shards given twice, and shards missing (rerun
+those alone with the same command and their --shard K/N).
+
+Each part file carries the scenario's text (and any CSV file it reads),
+so merge needs no scenario file. --out saves the result, --report renders
+the report at once; the table is printed as by assess, and --require
+gates recorded in the parts are judged here (exit status 3 when one is
+not met).`,
+		Example: `  holdfast assess lake.yaml --draws 1000000 --seed 7 --shard 0/4 --out part-0.json   # and 1/4, 2/4, 3/4
+  holdfast merge part-*.json --out lake-result.json --report lake.html`,
+		Args: cobra.MinimumNArgs(1),
+		RunE: func(cmd *cobra.Command, args []string) error {
+			if err := checkFormat(format, "table", "json"); err != nil {
+				return err
+			}
+			parts := make([]*report.PartJSON, len(args))
+			for i, name := range args {
+				p, err := report.ReadPart(name, report.KindPart)
+				if err != nil {
+					return badInput(err)
+				}
+				parts[i] = p
+			}
+			if err := report.CheckParts(args, parts); err != nil {
+				return badInput(err)
+			}
+			p0 := parts[0]
+			s, err := p0.Parse()
+			if err != nil {
+				return badInput(fmt.Errorf("%s: the stored scenario: %w", args[0], err))
+			}
+			m, err := compileWithSets(s, p0.Run.Sets)
+			if err != nil {
+				return badInput(fmt.Errorf("%s: %w", args[0], err))
+			}
+			kind, err := sample.ParsePlan(p0.Run.Plan)
+			if err != nil {
+				return badInput(fmt.Errorf("%s: %w", args[0], err))
+			}
+			reqs, err := gate.ParseAll(p0.Run.Requires)
+			if err != nil {
+				return badInput(fmt.Errorf("%s: --require: %w", args[0], err))
+			}
+			protect := append([]string{}, args...)
+			var outFile *report.Staged
+			if out != "" {
+				if outFile, err = report.Stage(out, protect...); err != nil {
+					return badInput(err)
+				}
+				defer outFile.Abort()
+			}
+			reports, err := rf.prepare(protect...)
+			if err != nil {
+				return err
+			}
+			defer reports.Abort()
+			if out == "" && reports == nil && quiet {
+				return badInput(errors.New("nothing to do: --quiet without --out or --report"))
+			}
+			opt := assess.Options{Draws: p0.Run.Draws, Seed: p0.Run.Seed, Plan: kind, UntilHalfWidth: p0.Run.UntilHalfWidth, MaxDraws: p0.Run.MaxDraws}
+			states := make([]*study.State, len(parts))
+			for i, p := range parts {
+				states[i] = p.State
+			}
+			outcome, err := study.Merge(m, study.Config{Certify: p0.Run.Certify}, opt, states)
+			if err != nil {
+				return badInput(fmt.Errorf("merging %s: %w", strings.Join(args, ", "), err))
+			}
+			return finishAssess(cmd, assessOutput{
+				model: m, scenario: s, opt: opt, outcome: outcome, command: p0.Command, version: p0.Version,
+				reqs: reqs, format: format, quiet: quiet, out: outFile, outName: out, reports: reports,
+			})
+		},
+	}
+	f := c.Flags()
+	f.StringVar(&out, "out", "", "write the merged JSON result to this file")
+	f.StringVar(&format, "format", "table", "output format: table or json")
+	f.BoolVar(&quiet, "quiet", false, "with --out or --report, print no table")
+	rf.add(f)
+	return c
+}
