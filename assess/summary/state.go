@@ -8,8 +8,6 @@ import (
 	"io"
 	"math"
 	"slices"
-	"strconv"
-	"strings"
 
 	"holdfast/assess/agg"
 )
@@ -22,15 +20,15 @@ const StateFormat = "holdfast.summary.collector/1"
 // the nominal curve) is not stored but checked: the configuration, the
 // labels, whether there is a current state, and the grid's ends.
 type stateJSON struct {
-	Format  string       `json:"format"`
-	Config  configJSON   `json:"config"`
-	Labels  []string     `json:"labels"`
-	Current bool         `json:"current_state"`
-	Grid    []exactNum   `json:"grid_ends"`
-	Band    bandJSON     `json:"band"`
-	Slopes  []rawSketch  `json:"slopes"`
-	Counts  countsJSON   `json:"counts"`
-	Closed  []countsJSON `json:"closed_checkpoints"`
+	Format  string           `json:"format"`
+	Config  configJSON       `json:"config"`
+	Labels  []string         `json:"labels"`
+	Current bool             `json:"current_state"`
+	Grid    []agg.ExactFloat `json:"grid_ends"`
+	Band    bandJSON         `json:"band"`
+	Slopes  []rawSketch      `json:"slopes"`
+	Counts  countsJSON       `json:"counts"`
+	Closed  []countsJSON     `json:"closed_checkpoints"`
 }
 
 type configJSON struct {
@@ -59,60 +57,6 @@ type countsJSON struct {
 
 // rawSketch holds an agg.Sketch in its own exact JSON form.
 type rawSketch = json.RawMessage
-
-// exactNum is a float64 written so that it reads back bit for bit: a
-// finite value as a JSON number in its shortest round-trip form (−0
-// included), the others as the strings "+Inf", "-Inf" and "NaN" (or
-// "NaN:0x…" with the bits of a NaN other than math.NaN()'s).
-type exactNum float64
-
-func (v exactNum) MarshalJSON() ([]byte, error) {
-	f := float64(v)
-	switch {
-	case math.IsInf(f, 1):
-		return []byte(`"+Inf"`), nil
-	case math.IsInf(f, -1):
-		return []byte(`"-Inf"`), nil
-	case math.IsNaN(f):
-		if b := math.Float64bits(f); b != math.Float64bits(math.NaN()) {
-			return fmt.Appendf(nil, `"NaN:%#016x"`, b), nil
-		}
-		return []byte(`"NaN"`), nil
-	}
-	return strconv.AppendFloat(nil, f, 'g', -1, 64), nil
-}
-
-func (v *exactNum) UnmarshalJSON(b []byte) error {
-	if len(b) > 0 && b[0] == '"' {
-		var s string
-		if err := json.Unmarshal(b, &s); err != nil {
-			return err
-		}
-		switch {
-		case s == "+Inf":
-			*v = exactNum(math.Inf(1))
-		case s == "-Inf":
-			*v = exactNum(math.Inf(-1))
-		case s == "NaN":
-			*v = exactNum(math.NaN())
-		case strings.HasPrefix(s, "NaN:0x"):
-			bits, err := strconv.ParseUint(s[len("NaN:0x"):], 16, 64)
-			if f := math.Float64frombits(bits); err != nil || !math.IsNaN(f) {
-				return fmt.Errorf("bad NaN %q", s)
-			}
-			*v = exactNum(math.Float64frombits(bits))
-		default:
-			return fmt.Errorf("bad number %q", s)
-		}
-		return nil
-	}
-	var f float64
-	if err := json.Unmarshal(b, &f); err != nil {
-		return err
-	}
-	*v = exactNum(f)
-	return nil
-}
 
 func configToJSON(c Config) configJSON {
 	return configJSON{c.GridPoints, c.NominalPoints, c.BandDraws, c.Bins, c.PilotDraws, c.FirstCheckpoint}
@@ -152,7 +96,7 @@ func (c *Collector) MarshalJSON() ([]byte, error) {
 		Config:  configToJSON(c.cfg),
 		Labels:  c.labels,
 		Current: c.current,
-		Grid:    []exactNum{exactNum(c.grid[0]), exactNum(c.grid[len(c.grid)-1])},
+		Grid:    []agg.ExactFloat{agg.ExactFloat(c.grid[0]), agg.ExactFloat(c.grid[len(c.grid)-1])},
 		Band:    bandJSON{Draws: c.bandDraws, Undefined: c.undefined},
 		Counts:  c.now.toJSON(),
 		Closed:  make([]countsJSON, len(c.closed)),
