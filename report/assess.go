@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"holdfast/assess"
+	"holdfast/assess/certify"
 	"holdfast/assess/gate"
 	"holdfast/assess/sensitivity"
 )
@@ -371,13 +372,18 @@ func ints(v []int) string {
 // DrawsCSV streams per-draw records as CSV: the draw index, every
 // parameter, then each tracked equilibrium's existence, position and class,
 // the regime pattern, the destination from the current state and a failure
-// reason.
+// reason; with Certified set, also the draw's certification (certified,
+// unresolved, or empty for a failed draw) and the widest unresolved
+// interval.
 type DrawsCSV struct {
-	w      *csv.Writer
-	row    []string
-	header bool
-	names  []string
-	labels []string
+	// Certified adds the certification columns (set before the first
+	// Write; the records must carry the certification hook's fields).
+	Certified bool
+	w         *csv.Writer
+	row       []string
+	header    bool
+	names     []string
+	labels    []string
 }
 
 // NewDrawsCSV returns a writer for the given parameter names and tracked
@@ -395,6 +401,9 @@ func (d *DrawsCSV) Write(block []assess.Draw) error {
 			h = append(h, l+"_exists", l+"_x", l+"_class")
 		}
 		h = append(h, "regime", "destination", "failed")
+		if d.Certified {
+			h = append(h, "certification", "unresolved_width")
+		}
 		if err := d.w.Write(h); err != nil {
 			return err
 		}
@@ -423,6 +432,18 @@ func (d *DrawsCSV) Write(block []assess.Draw) error {
 			classes[j] = c.String()
 		}
 		d.row = append(d.row, strings.Join(classes, "/"), r.Outcome, r.Failed)
+		if d.Certified {
+			status, width := "", ""
+			if st, ok := certify.Fields(r); ok {
+				switch st.Status {
+				case certify.Certified:
+					status = "certified"
+				case certify.Unresolved:
+					status, width = "unresolved", strconv.FormatFloat(st.MaxWidth, 'g', -1, 64)
+				}
+			}
+			d.row = append(d.row, status, width)
+		}
 		if err := d.w.Write(d.row); err != nil {
 			return err
 		}

@@ -45,6 +45,7 @@ type PartRunJSON struct {
 	UntilHalfWidth float64  `json:"until_halfwidth"`
 	MaxDraws       int      `json:"max_draws"`
 	Certify        bool     `json:"certify"`
+	CheckSides     bool     `json:"check_sides"`
 	Requires       []string `json:"requires"`
 	Shard          int      `json:"shard"`
 	Shards         int      `json:"shards"`
@@ -169,6 +170,7 @@ func SameRun(a, b *PartJSON) string {
 		{"--until-halfwidth", ra.UntilHalfWidth, rb.UntilHalfWidth},
 		{"--max-draws", ra.MaxDraws, rb.MaxDraws},
 		{"--certify", ra.Certify, rb.Certify},
+		{"--check-sides", ra.CheckSides, rb.CheckSides},
 		{"--require", strings.Join(ra.Requires, "; "), strings.Join(rb.Requires, "; ")},
 		{"shard count", ra.Shards, rb.Shards},
 	} {

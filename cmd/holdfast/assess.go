@@ -29,6 +29,7 @@ func newAssessCmd() *cobra.Command {
 		seed                   uint64
 		halfWidth              float64
 		quiet, certifyOn       bool
+		checkSides             bool
 		requires               []string
 		rf                     reportFlags
 		shardSpec, checkpoint  string
@@ -146,7 +147,10 @@ result an uninterrupted run gives. The file is removed when the run ends.`,
 					return err
 				}
 			}
-			st, err := study.New(m, study.Config{Certify: certifyOn})
+			if checkSides && !certifyOn {
+				return badInput(errors.New("--check-sides needs the certification (drop --certify=false)"))
+			}
+			st, err := study.New(m, studyConfig(certifyOn, checkSides))
 			if err != nil {
 				return failed(err)
 			}
@@ -157,7 +161,7 @@ result an uninterrupted run gives. The file is removed when the run ends.`,
 			command := commandLine(cmd, args)
 			settings := report.PartRunJSON{
 				Sets: sets, Draws: draws, Seed: seed, Plan: kind.String(), UntilHalfWidth: halfWidth, MaxDraws: maxDrw,
-				Certify: certifyOn, Requires: requires, Shard: sh.K, Shards: max(sh.N, 1),
+				Certify: certifyOn, CheckSides: checkSides, Requires: requires, Shard: sh.K, Shards: max(sh.N, 1),
 			}
 			runInfo := report.RunInfo{Command: command, Scenario: m.Scenario}
 			if checkpoint != "" {
@@ -198,6 +202,7 @@ result an uninterrupted run gives. The file is removed when the run ends.`,
 				}
 				defer csvOut.Abort()
 				csvw := report.NewDrawsCSV(csvOut, m.Names, trackedLabels(m))
+				csvw.Certified = certifyOn
 				opt.Sink = csvw.Write
 			}
 			reports, err := rf.prepare(scenarioPath, out)
@@ -261,6 +266,7 @@ result an uninterrupted run gives. The file is removed when the run ends.`,
 	f.BoolVar(&quiet, "quiet", false, "no progress bar; with --out or --report, no table either")
 	f.StringArrayVar(&requires, "require", nil, `requirement gate, e.g. "E2 attracting >= 0.95" (repeatable; exit status 3 when not met)`)
 	f.BoolVar(&certifyOn, "certify", true, "prove every draw's equilibria by interval arithmetic and report the certified share (--certify=false skips it)")
+	f.BoolVar(&checkSides, "check-sides", false, "also integrate the rate law (Dormand–Prince) on both sides of each equilibrium whose linear term vanishes, in draws not certified, and warn where it contradicts the verdict")
 	f.StringVar(&shardSpec, "shard", "", "run only shard K of N (K/N; auto or auto/N from Slurm or Kubernetes variables) into the part file --out")
 	f.StringVar(&checkpoint, "checkpoint", "", "save the run's state to this file every few seconds (removed when the run ends)")
 	f.BoolVar(&resume, "resume", false, "continue the run saved in --checkpoint FILE")

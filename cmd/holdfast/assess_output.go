@@ -111,6 +111,14 @@ func replayCommand(scenario string, command []string, opt assess.Options) string
 	return strings.Join(words, " ")
 }
 
+// studyConfig is the study of holdfast assess (and of merge, from the
+// parts' settings).
+func studyConfig(certify, checkSides bool) study.Config {
+	cfg := study.Config{Certify: certify}
+	cfg.CertifyOptions.Simulate = checkSides
+	return cfg
+}
+
 // trackedLabels are the labels of the model's nominal equilibria.
 func trackedLabels(m *assess.Model) []string {
 	nominal, err := m.Analyze(m.Nominal)

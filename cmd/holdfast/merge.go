@@ -95,7 +95,7 @@ not met).`,
 			for i, p := range parts {
 				states[i] = p.State
 			}
-			outcome, err := study.Merge(m, study.Config{Certify: p0.Run.Certify}, opt, states)
+			outcome, err := study.Merge(m, studyConfig(p0.Run.Certify, p0.Run.CheckSides), opt, states)
 			if err != nil {
 				return badInput(fmt.Errorf("merging %s: %w", strings.Join(args, ", "), err))
 			}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -373,4 +374,51 @@ func TestShardAndCheckpointBadFlags(t *testing.T) {
 		t.Fatalf("whole: exit %d, %s", code, stderr)
 	}
 	sameFiles(t, "r.json", "whole.json")
+}
+
+func TestCheckSidesOnADoubleRoot(t *testing.T) {
+	// x' = −(x − c)² has one equilibrium, x* = c, attracting from above
+	// only (Strogatz 1994, ch. 2, the normal form x' = x² reflected): the
+	// certification cannot prove a double root, so every draw stays
+	// unresolved but located, and integrating from just above and below
+	// confirms the verdict, so no draw disagrees.
+	dir := t.TempDir()
+	path := filepath.Join(dir, "double.yaml")
+	src := `holdfast: 1
+title: a double root at an uncertain place (illustrative)
+state: {symbol: x, domain: [0, 4]}
+rate: "-(x - c)^2"
+parameters:
+  c: {dist: uniform, min: 1, max: 3}
+`
+	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	stdout, stderr, code := holdfast(t, "assess", path, "--draws", "200", "--check-sides", "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var doc struct {
+		Equilibria []struct {
+			Semistable float64 `json:"p_semistable"`
+		} `json:"equilibria"`
+		Certification struct {
+			Checked     int64 `json:"checked_draws"`
+			Unresolved  int64 `json:"unresolved_draws"`
+			Disagreeing int64 `json:"disagreeing_draws"`
+		} `json:"certification"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	c := doc.Certification
+	if c.Checked != 200 || c.Unresolved != 200 || c.Disagreeing != 0 {
+		t.Errorf("certification %+v, want 200 checked, all unresolved, none disagreeing", c)
+	}
+	if len(doc.Equilibria) != 1 || doc.Equilibria[0].Semistable != 1 {
+		t.Errorf("equilibria %+v, want one semistable in every draw", doc.Equilibria)
+	}
+	if _, stderr, code := holdfast(t, "assess", path, "--draws", "20", "--check-sides", "--certify=false"); code != exitBad || !strings.Contains(stderr, "--check-sides") {
+		t.Errorf("--check-sides without certification: exit %d, %s", code, stderr)
+	}
 }
