@@ -96,6 +96,12 @@ func TestBadFlags(t *testing.T) {
 		{[]string{"equilibria", "no-such-file.yaml"}, "no-such-file.yaml"},
 		{[]string{"equilibria", "demo:lake", "--set", "s=NaN"}, "finite"},
 		{[]string{"nosuchcommand"}, "unknown command"},
+		{[]string{"demos", "nosuch"}, `unknown demo "nosuch"`},
+		{[]string{"demos", "lake", "fishery"}, "at most 1 arg"},
+		{[]string{"merge", "--format", "xml", "--out", out, "part.json"}, "--format"},
+		{[]string{"merge", "--quiet", "part.json"}, "part.json"},
+		{[]string{"assess", "demo:lake", "--check-sides", "--certify=false", "--out", out}, "--check-sides"},
+		{[]string{"assess", "demo:lake", "--certify=maybe", "--out", out}, "--certify"},
 	}
 	for _, c := range cases {
 		_, stderr, code := holdfast(t, c.args...)
