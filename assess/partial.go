@@ -72,49 +72,91 @@ func shardSize(draws int, sh Shard) int {
 // Merge combines the partials of all shards of one run into its Result.
 // Every shard 0..N−1 must be present exactly once, all with the same shard
 // count; opt must be the run's options (draws, seed, plan), which the
-// caller checks against the parts' records.
+// caller checks against the parts' records. It is a Merger fed every part.
 func Merge(m *Model, opt Options, parts []*Partial) (*Result, error) {
 	if len(parts) == 0 {
 		return nil, errors.New("merge: no parts")
 	}
-	n := parts[0].Shards
-	seen := make([]bool, n)
+	mg, err := NewMerger(m, opt)
+	if err != nil {
+		return nil, err
+	}
 	for _, p := range parts {
-		if p.Shards != n {
-			return nil, fmt.Errorf("merge: shard %d/%d does not belong with shards of %d", p.Shard, p.Shards, n)
-		}
-		if seen[p.Shard] {
-			return nil, fmt.Errorf("merge: shard %d/%d given twice", p.Shard, n)
-		}
-		seen[p.Shard] = true
-		if !p.Complete() {
-			return nil, fmt.Errorf("merge: shard %d/%d is a checkpoint (%d of %d draws), not a finished shard", p.Shard, n, p.Draws, p.Planned)
-		}
-		if want := shardSize(opt.Draws, Shard{p.Shard, n}); p.Draws != want {
-			return nil, fmt.Errorf("merge: shard %d/%d covers %d draws, want %d of %d", p.Shard, n, p.Draws, want, opt.Draws)
+		if err := mg.Add(p); err != nil {
+			return nil, err
 		}
 	}
+	return mg.Result()
+}
+
+// Merger combines the partials of the shards of one run one at a time, so
+// that a merge of many shards holds one partial at a time, and its cost
+// grows linearly in the shards.
+type Merger struct {
+	m       *Model
+	opt     Options
+	nominal *Snapshot
+	total   *aggregate
+	n       int    // shard count, from the first part
+	seen    []bool // shards added
+}
+
+// NewMerger returns a Merger for the run of m with options opt.
+func NewMerger(m *Model, opt Options) (*Merger, error) {
+	nominal, err := m.Analyze(m.Nominal)
+	if err != nil {
+		return nil, err
+	}
+	return &Merger{m: m, opt: opt, nominal: nominal, total: newAggregate(len(nominal.Equilibria))}, nil
+}
+
+// Add merges one finished shard: it must have the shard count of the
+// first, not be given twice, and cover its share of the run's draws.
+func (mg *Merger) Add(p *Partial) error {
+	if mg.seen == nil {
+		if p.Shards < 1 || p.Shards > MaxDraws {
+			return fmt.Errorf("merge: shard count %d", p.Shards)
+		}
+		mg.n, mg.seen = p.Shards, make([]bool, p.Shards)
+	}
+	n := mg.n
+	switch {
+	case p.Shards != n:
+		return fmt.Errorf("merge: shard %d/%d does not belong with shards of %d", p.Shard, p.Shards, n)
+	case p.Shard < 0 || p.Shard >= n:
+		return fmt.Errorf("merge: shard %d/%d out of range", p.Shard, n)
+	case mg.seen[p.Shard]:
+		return fmt.Errorf("merge: shard %d/%d given twice", p.Shard, n)
+	case !p.Complete():
+		return fmt.Errorf("merge: shard %d/%d is a checkpoint (%d of %d draws), not a finished shard", p.Shard, n, p.Draws, p.Planned)
+	}
+	if want := shardSize(mg.opt.Draws, Shard{p.Shard, n}); p.Draws != want {
+		return fmt.Errorf("merge: shard %d/%d covers %d draws, want %d of %d", p.Shard, n, p.Draws, want, mg.opt.Draws)
+	}
+	if len(p.agg.tracked) != len(mg.nominal.Equilibria) {
+		return fmt.Errorf("merge: shard %d/%d tracks %d equilibria, the scenario %d", p.Shard, n, len(p.agg.tracked), len(mg.nominal.Equilibria))
+	}
+	mg.seen[p.Shard] = true
+	mg.total.merge(p.agg)
+	return nil
+}
+
+// Result returns the merged run's Result once every shard is in, and
+// names the missing shards otherwise.
+func (mg *Merger) Result() (*Result, error) {
+	if mg.seen == nil {
+		return nil, errors.New("merge: no parts")
+	}
 	var missing []int
-	for k, ok := range seen {
+	for k, ok := range mg.seen {
 		if !ok {
 			missing = append(missing, k)
 		}
 	}
 	if len(missing) > 0 {
-		return nil, fmt.Errorf("merge: shards %v of %d missing", missing, n)
+		return nil, fmt.Errorf("merge: shards %v of %d missing", missing, mg.n)
 	}
-	nominal, err := m.Analyze(m.Nominal)
-	if err != nil {
-		return nil, err
-	}
-	total := newAggregate(len(nominal.Equilibria))
-	for _, p := range parts {
-		if len(p.agg.tracked) != len(nominal.Equilibria) {
-			return nil, fmt.Errorf("merge: shard %d/%d tracks %d equilibria, the scenario %d", p.Shard, n, len(p.agg.tracked), len(nominal.Equilibria))
-		}
-		total.merge(p.agg)
-	}
-	return total.finish(m, nominal, opt, opt.Draws, Convergence{Batches: 1}), nil
+	return mg.total.finish(mg.m, mg.nominal, mg.opt, mg.opt.Draws, Convergence{Batches: 1}), nil
 }
 
 // Stored forms.

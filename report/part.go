@@ -182,28 +182,54 @@ func SameRun(a, b *PartJSON) string {
 }
 
 // CheckParts checks that the parts (read from the files names) are the
-// shards of one run, each exactly once: it names the file whose settings
-// differ from the first's and what differs, duplicate shards with both
-// files, and missing shards.
+// shards of one run, each exactly once (see PartChecker).
 func CheckParts(names []string, parts []*PartJSON) error {
-	if len(parts) == 0 {
+	var c PartChecker
+	for i, p := range parts {
+		if err := c.Add(names[i], p); err != nil {
+			return err
+		}
+	}
+	return c.Done()
+}
+
+// PartChecker checks, one part at a time, that parts are the shards of
+// one run, each exactly once: it names the file whose settings differ from
+// the first's and what differs, duplicate shards with both files, and (in
+// Done) missing shards. It keeps only the first part's head.
+type PartChecker struct {
+	first     PartJSON // without its state
+	firstName string
+	byShard   []string
+	given     int
+}
+
+// Add checks one part, read from the file name.
+func (c *PartChecker) Add(name string, p *PartJSON) error {
+	if c.byShard == nil {
+		c.first, c.firstName = *p, name
+		c.first.State, c.first.Attached = nil, nil
+		c.byShard = make([]string, p.Run.Shards)
+	} else if d := SameRun(&c.first, p); d != "" {
+		return fmt.Errorf("%s does not belong with %s: %s", name, c.firstName, d)
+	}
+	k := p.Run.Shard
+	if c.byShard[k] != "" {
+		return fmt.Errorf("%s and %s are both shard %d of %d", c.byShard[k], name, k, len(c.byShard))
+	}
+	c.byShard[k] = name
+	c.given++
+	return nil
+}
+
+// Done reports missing shards.
+func (c *PartChecker) Done() error {
+	if c.byShard == nil {
 		return errors.New("no part files given")
 	}
-	first := parts[0]
-	n := first.Run.Shards
-	byShard := make([]string, n)
-	for i, p := range parts {
-		if d := SameRun(first, p); d != "" {
-			return fmt.Errorf("%s does not belong with %s: %s", names[i], names[0], d)
-		}
-		k := p.Run.Shard
-		if byShard[k] != "" {
-			return fmt.Errorf("%s and %s are both shard %d of %d", byShard[k], names[i], k, n)
-		}
-		byShard[k] = names[i]
-	}
+	n := len(c.byShard)
 	var missing []string
-	for k, name := range byShard {
+	for k, name := range c.byShard {
 		if name == "" {
 			missing = append(missing, fmt.Sprint(k))
 		}
@@ -213,7 +239,7 @@ func CheckParts(names []string, parts []*PartJSON) error {
 		if len(missing) > 1 {
 			what = "shards " + strings.Join(missing, ", ")
 		}
-		return fmt.Errorf("%s of %d missing (given %d part files); run the missing shards with the same command and --shard K/%d", what, n, len(parts), n)
+		return fmt.Errorf("%s of %d missing (given %d part files); run the missing shards with the same command and --shard K/%d", what, n, c.given, n)
 	}
 	return nil
 }

@@ -213,36 +213,72 @@ func (s *Study) merge(o *Study) error {
 // Merge combines the states of every shard of one run (opt: the run's
 // draws, seed and plan) into the study's outcome, identical to the
 // outcome of one run over all draws. Shards missing, given twice or of
-// another shard count are named (assess.Merge).
+// another shard count are named (assess.Merger). It is a Merger fed every
+// state.
 func Merge(m *assess.Model, cfg Config, opt assess.Options, states []*State) (*Outcome, error) {
 	if len(states) == 0 {
 		return nil, errors.New("merge: no parts")
 	}
-	var (
-		total *Study
-		parts []*assess.Partial
-	)
-	for i, st := range states {
-		s, err := New(m, cfg)
-		if err != nil {
-			return nil, err
-		}
-		p, err := s.Restore(st)
-		if err != nil {
-			return nil, fmt.Errorf("part %d: %w", i+1, err)
-		}
-		parts = append(parts, p)
-		if total == nil {
-			total = s
-			continue
-		}
-		if err := total.merge(s); err != nil {
-			return nil, fmt.Errorf("merge: shard %d/%d: %w", p.Shard, p.Shards, err)
-		}
-	}
-	r, err := assess.Merge(m, opt, parts)
+	mg, err := NewMerger(m, cfg, opt)
 	if err != nil {
 		return nil, err
 	}
-	return total.outcome(r), nil
+	for i, st := range states {
+		if err := mg.Add(st); err != nil {
+			return nil, fmt.Errorf("part %d: %w", i+1, err)
+		}
+	}
+	return mg.Outcome()
+}
+
+// Merger combines the states of the shards of one run one at a time:
+// memory holds the merged collectors and one shard's state, and the cost
+// grows linearly in the shards.
+type Merger struct {
+	m      *assess.Model
+	cfg    Config
+	engine *assess.Merger
+	total  *Study
+}
+
+// NewMerger returns a Merger for the study of m with cfg, of the run with
+// options opt.
+func NewMerger(m *assess.Model, cfg Config, opt assess.Options) (*Merger, error) {
+	eng, err := assess.NewMerger(m, opt)
+	if err != nil {
+		return nil, err
+	}
+	total, err := New(m, cfg)
+	if err != nil {
+		return nil, err
+	}
+	return &Merger{m: m, cfg: cfg, engine: eng, total: total}, nil
+}
+
+// Add merges one finished shard's state.
+func (mg *Merger) Add(st *State) error {
+	s, err := New(mg.m, mg.cfg)
+	if err != nil {
+		return err
+	}
+	p, err := s.Restore(st)
+	if err != nil {
+		return err
+	}
+	if err := mg.engine.Add(p); err != nil {
+		return err
+	}
+	if err := mg.total.merge(s); err != nil {
+		return fmt.Errorf("merge: shard %d/%d: %w", p.Shard, p.Shards, err)
+	}
+	return nil
+}
+
+// Outcome returns the merged study once every shard is in.
+func (mg *Merger) Outcome() (*Outcome, error) {
+	r, err := mg.engine.Result()
+	if err != nil {
+		return nil, err
+	}
+	return mg.total.outcome(r), nil
 }

@@ -3,7 +3,6 @@ package main
 import (
 	"errors"
 	"fmt"
-	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -12,6 +11,7 @@ import (
 	"holdfast/assess/study"
 	"holdfast/report"
 	"holdfast/sample"
+	"holdfast/scenarios"
 )
 
 func newMergeCmd() *cobra.Command {
@@ -46,58 +46,74 @@ not met).`,
 			if err := checkFormat(format, "table", "json"); err != nil {
 				return err
 			}
-			parts := make([]*report.PartJSON, len(args))
+			// One part at a time: memory holds the merged state and one
+			// part, whatever the number of shards.
+			protect := append([]string{}, args...)
+			var (
+				check   report.PartChecker
+				p0      *report.PartJSON
+				s       *scenarios.Scenario
+				m       *assess.Model
+				opt     assess.Options
+				reqs    []gate.Requirement
+				merger  *study.Merger
+				outFile *report.Staged
+				reports *report.Reports
+			)
 			for i, name := range args {
 				p, err := report.ReadPart(name, report.KindPart)
 				if err != nil {
 					return badInput(err)
 				}
-				parts[i] = p
-			}
-			if err := report.CheckParts(args, parts); err != nil {
-				return badInput(err)
-			}
-			p0 := parts[0]
-			s, err := p0.Parse()
-			if err != nil {
-				return badInput(fmt.Errorf("%s: the stored scenario: %w", args[0], err))
-			}
-			m, err := compileWithSets(s, p0.Run.Sets)
-			if err != nil {
-				return badInput(fmt.Errorf("%s: %w", args[0], err))
-			}
-			kind, err := sample.ParsePlan(p0.Run.Plan)
-			if err != nil {
-				return badInput(fmt.Errorf("%s: %w", args[0], err))
-			}
-			reqs, err := gate.ParseAll(p0.Run.Requires)
-			if err != nil {
-				return badInput(fmt.Errorf("%s: --require: %w", args[0], err))
-			}
-			protect := append([]string{}, args...)
-			var outFile *report.Staged
-			if out != "" {
-				if outFile, err = report.Stage(out, protect...); err != nil {
+				if err := check.Add(name, p); err != nil {
 					return badInput(err)
 				}
-				defer outFile.Abort()
+				if i == 0 {
+					p0 = p
+					if s, err = p.Parse(); err != nil {
+						return badInput(fmt.Errorf("%s: the stored scenario: %w", name, err))
+					}
+					if m, err = compileWithSets(s, p.Run.Sets); err != nil {
+						return badInput(fmt.Errorf("%s: %w", name, err))
+					}
+					kind, err := sample.ParsePlan(p.Run.Plan)
+					if err != nil {
+						return badInput(fmt.Errorf("%s: %w", name, err))
+					}
+					if reqs, err = gate.ParseAll(p.Run.Requires); err != nil {
+						return badInput(fmt.Errorf("%s: --require: %w", name, err))
+					}
+					opt = assess.Options{Draws: p.Run.Draws, Seed: p.Run.Seed, Plan: kind, UntilHalfWidth: p.Run.UntilHalfWidth, MaxDraws: p.Run.MaxDraws}
+					if merger, err = study.NewMerger(m, studyConfig(p.Run.Certify, p.Run.CheckSides), opt); err != nil {
+						return failed(err)
+					}
+					// Stage the outputs once the first part is known good,
+					// so that a bad path fails before the long part.
+					if out != "" {
+						if outFile, err = report.Stage(out, protect...); err != nil {
+							return badInput(err)
+						}
+						defer outFile.Abort()
+					}
+					if reports, err = rf.prepare(protect...); err != nil {
+						return err
+					}
+					defer reports.Abort()
+					if out == "" && reports == nil && quiet {
+						return badInput(errors.New("nothing to do: --quiet without --out or --report"))
+					}
+				}
+				if err := merger.Add(p.State); err != nil {
+					return badInput(fmt.Errorf("merging %s: %w", name, err))
+				}
+				p.State = nil
 			}
-			reports, err := rf.prepare(protect...)
+			if err := check.Done(); err != nil {
+				return badInput(err)
+			}
+			outcome, err := merger.Outcome()
 			if err != nil {
-				return err
-			}
-			defer reports.Abort()
-			if out == "" && reports == nil && quiet {
-				return badInput(errors.New("nothing to do: --quiet without --out or --report"))
-			}
-			opt := assess.Options{Draws: p0.Run.Draws, Seed: p0.Run.Seed, Plan: kind, UntilHalfWidth: p0.Run.UntilHalfWidth, MaxDraws: p0.Run.MaxDraws}
-			states := make([]*study.State, len(parts))
-			for i, p := range parts {
-				states[i] = p.State
-			}
-			outcome, err := study.Merge(m, studyConfig(p0.Run.Certify, p0.Run.CheckSides), opt, states)
-			if err != nil {
-				return badInput(fmt.Errorf("merging %s: %w", strings.Join(args, ", "), err))
+				return badInput(err)
 			}
 			return finishAssess(cmd, assessOutput{
 				model: m, scenario: s, opt: opt, outcome: outcome, command: p0.Command, version: p0.Version,
