@@ -87,7 +87,7 @@ func (p *PartJSON) Parse() (*scenarios.Scenario, error) {
 // ReadPart reads and checks a part or checkpoint file (want is KindPart
 // or KindCheckpoint). Every error is a *ResultError naming the file.
 func ReadPart(path, want string) (*PartJSON, error) {
-	data, err := readFile(path, want)
+	data, err := readFile(path, kindName(want))
 	if err != nil {
 		return nil, err
 	}

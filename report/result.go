@@ -292,6 +292,9 @@ func ReadResult(path string) (*Saved, error) {
 // readFile reads a file of at most MaxResultBytes; errors are
 // *ResultError naming the file.
 func readFile(path, what string) ([]byte, error) {
+	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() && !fi.IsDir() {
+		return nil, &ResultError{File: path, Msg: "is not a regular file (a pipe or device would block): not a " + what + " file"}
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, &ResultError{File: path, Msg: strings.TrimPrefix(err.Error(), "open "+path+": ")}

@@ -49,6 +49,9 @@ func (p *parser) readColumn(b *spec, par *Param) ([]float64, bool) {
 	if p.dir == nil {
 		return bad("cannot read CSV files here (the scenario was not read from a folder); give samples: as a list")
 	}
+	if st, err := fs.Stat(p.dir, clean); err == nil && !st.Mode().IsRegular() && !st.IsDir() {
+		return bad("%s is not a regular file (a pipe or device would block); give a CSV file", quoteShort(clean))
+	}
 	f, err := p.dir.Open(clean)
 	if err != nil {
 		if errors.Is(err, fs.ErrNotExist) {

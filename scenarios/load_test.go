@@ -50,8 +50,8 @@ func TestLoad(t *testing.T) {
 	if _, err := Load(filepath.Join(dir, "missing.yaml")); !errors.Is(err, fs.ErrNotExist) {
 		t.Errorf("missing file: %v", err)
 	}
-	if _, err := Load(dir); err == nil {
-		t.Error("a folder loaded as a scenario")
+	if _, err := Load(dir); err == nil || !strings.Contains(err.Error(), "is a folder") {
+		t.Errorf("a folder as a scenario: %v", err)
 	}
 	if _, err := Parse("x.yaml", []byte(strings.Repeat(" ", MaxFileSize+1)), nil); err == nil ||
 		err.Error() != "x.yaml: scenario file is larger than the 1 MiB limit" {

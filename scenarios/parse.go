@@ -55,6 +55,10 @@ func Load(path string) (*Scenario, error) {
 	if name, ok := strings.CutPrefix(path, DemoPrefix); ok {
 		return LoadDemo(name)
 	}
+	// A pipe or device would block or never end: only regular files.
+	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() {
+		return nil, ErrorList{{File: path, Msg: notRegular(fi.Mode())}}
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, err
@@ -73,6 +77,17 @@ func Load(path string) (*Scenario, error) {
 		dir = root.FS()
 	}
 	return Parse(path, data, dir)
+}
+
+// notRegular says what a path that is not a regular file is.
+func notRegular(m fs.FileMode) string {
+	switch {
+	case m.IsDir():
+		return "is a folder, not a scenario file"
+	case m&fs.ModeNamedPipe != 0:
+		return "is a named pipe, not a scenario file (give a regular file)"
+	}
+	return "is not a regular file (a device or socket?); give a regular scenario file"
 }
 
 func tooBig(what string) string {

@@ -12,7 +12,12 @@ import (
 	"os"
 	"os/signal"
 	"syscall"
+	"time"
 )
+
+// stuckAfter is how long after SIGINT or SIGTERM a command that has not
+// returned is stopped by force.
+const stuckAfter = 3 * time.Second
 
 // Exit statuses.
 const (
@@ -37,6 +42,24 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	}()
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
+	// A run stops within a second of SIGINT or SIGTERM by itself; should
+	// a command be stuck in a system call the signal cannot interrupt,
+	// exit anyway rather than ignore the signal.
+	finished := make(chan struct{})
+	defer close(finished)
+	go func() {
+		select {
+		case <-finished:
+			return
+		case <-ctx.Done():
+		}
+		select {
+		case <-finished:
+		case <-time.After(stuckAfter):
+			fmt.Fprintf(stderr, "holdfast: did not stop within %v of the signal; exiting\n", stuckAfter)
+			os.Exit(exitFailure)
+		}
+	}()
 	root := newRootCmd(stdout, stderr)
 	root.SetArgs(args)
 	err := root.ExecuteContext(ctx)
