@@ -587,36 +587,11 @@ func lowerBound(a1, a2 float64, d expr.Interval, w float64) float64 {
 	return v
 }
 
-// dn and up return the floats just below and above x (math.Nextafter
-// toward ∓∞, written to be inlined): bounds on the exact result of the one
-// operation that produced x in round-to-nearest, which lies within half a
-// gap of it, also when subnormal. ±Inf and NaN stay as they are, except
-// that an overflowed +Inf goes down to MaxFloat64 (and −Inf up).
-func dn(x float64) float64 {
-	b := math.Float64bits(x)
-	switch {
-	case x > 0:
-		b--
-	case x < 0 && x >= -math.MaxFloat64:
-		b++
-	case x == 0:
-		return -0x1p-1074
-	}
-	return math.Float64frombits(b)
-}
+// dn and up bound the exact result of the one operation that produced x
+// (see expr.NextDown).
+func dn(x float64) float64 { return expr.NextDown(x) }
 
-func up(x float64) float64 {
-	b := math.Float64bits(x)
-	switch {
-	case x < 0:
-		b--
-	case x > 0 && x <= math.MaxFloat64:
-		b++
-	case x == 0:
-		return 0x1p-1074
-	}
-	return math.Float64frombits(b)
-}
+func up(x float64) float64 { return expr.NextUp(x) }
 
 // root records the root certified in b (f strictly monotone, opposite
 // signs at the ends) and narrows its enclosure.

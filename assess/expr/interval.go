@@ -64,7 +64,7 @@ func (a Interval) Width() float64 {
 	if a.Lo == a.Hi {
 		return 0
 	}
-	return nextUp(a.Hi - a.Lo)
+	return NextUp(a.Hi - a.Lo)
 }
 
 // Mid returns a point of a near its middle (Lo + (Hi − Lo)/2 for finite
@@ -127,10 +127,12 @@ func (a Interval) Mul(b Interval) Interval { return ivMul(a, b) }
 // is [0, 0].
 func (a Interval) Div(b Interval) Interval { w, _ := ivDiv(a, b); return w }
 
-// nextDown returns the largest float64 below x (math.Nextafter(x, −∞)),
-// MaxFloat64 for +Inf; −Inf and NaN are returned unchanged. (Written to
-// fit the compiler's inlining budget.)
-func nextDown(x float64) float64 {
+// NextDown returns the largest float64 below x (math.Nextafter(x, −∞)),
+// MaxFloat64 for +Inf; −Inf and NaN are returned unchanged. Applied to the
+// result of one operation in round-to-nearest, it gives a lower bound on
+// the exact result, which lies within half a gap, also when subnormal.
+// (Written to fit the compiler's inlining budget, across packages too.)
+func NextDown(x float64) float64 {
 	b := math.Float64bits(x)
 	switch {
 	case x > 0:
@@ -143,8 +145,9 @@ func nextDown(x float64) float64 {
 	return math.Float64frombits(b)
 }
 
-// nextUp returns the smallest float64 above x, −MaxFloat64 for −Inf.
-func nextUp(x float64) float64 {
+// NextUp returns the smallest float64 above x, −MaxFloat64 for −Inf: the
+// upper bound matching NextDown.
+func NextUp(x float64) float64 {
 	b := math.Float64bits(x)
 	switch {
 	case x < 0:
@@ -163,14 +166,14 @@ func sDn(s float64) float64 {
 	if s == 0 {
 		return 0
 	}
-	return nextDown(s)
+	return NextDown(s)
 }
 
 func sUp(s float64) float64 {
 	if s == 0 {
 		return 0
 	}
-	return nextUp(s)
+	return NextUp(s)
 }
 
 // addDn and addUp bound a + b from below and above with the rounding error
@@ -202,14 +205,14 @@ func pDn(x, y float64) float64 {
 	if x == 0 || y == 0 {
 		return 0
 	}
-	return nextDown(x * y)
+	return NextDown(x * y)
 }
 
 func pUp(x, y float64) float64 {
 	if x == 0 || y == 0 {
 		return 0
 	}
-	return nextUp(x * y)
+	return NextUp(x * y)
 }
 
 // qDn and qUp bound x/y (y ≠ 0; never both infinite under the invariant);
@@ -218,14 +221,14 @@ func qDn(x, y float64) float64 {
 	if x == 0 {
 		return 0
 	}
-	return nextDown(x / y)
+	return NextDown(x / y)
 }
 
 func qUp(x, y float64) float64 {
 	if x == 0 {
 		return 0
 	}
-	return nextUp(x / y)
+	return NextUp(x / y)
 }
 
 // widenDn0 and widenUp0 are widenDn and widenUp that keep an exact value
@@ -249,14 +252,14 @@ func widenDn(v, e float64) float64 {
 	if math.IsInf(v, 1) {
 		return math.MaxFloat64
 	}
-	return nextDown(v - e)
+	return NextDown(v - e)
 }
 
 func widenUp(v, e float64) float64 {
 	if math.IsInf(v, -1) {
 		return -math.MaxFloat64
 	}
-	return nextUp(v + e)
+	return NextUp(v + e)
 }
 
 func ivAdd(a, b Interval) Interval {
@@ -290,7 +293,7 @@ func ivMul(a, b Interval) Interval {
 		return Interval{pDn(a.Hi, b.Hi), pUp(a.Lo, b.Lo)}
 	}
 	// Mixed signs: round the extreme products once (nextDown is monotone,
-	// so nextDown(min p) is below every exact product); 0·∞ is 0.
+	// so NextDown(min p) is below every exact product); 0·∞ is 0.
 	p1, p2, p3, p4 := a.Lo*b.Lo, a.Lo*b.Hi, a.Hi*b.Lo, a.Hi*b.Hi
 	if p1 != p1 || p2 != p2 || p3 != p3 || p4 != p4 {
 		return Interval{
@@ -298,7 +301,7 @@ func ivMul(a, b Interval) Interval {
 			max(pUp(a.Lo, b.Lo), pUp(a.Lo, b.Hi), pUp(a.Hi, b.Lo), pUp(a.Hi, b.Hi)),
 		}
 	}
-	return Interval{nextDown(min(p1, p2, p3, p4)), nextUp(max(p1, p2, p3, p4))}
+	return Interval{NextDown(min(p1, p2, p3, p4)), NextUp(max(p1, p2, p3, p4))}
 }
 
 // ivSqr returns {x² : x ∈ a}: 0 is the minimum when a holds it.
@@ -470,10 +473,10 @@ func ivSqrt(a Interval) (Interval, bool) {
 	}
 	w := Interval{}
 	if a.Lo > 0 {
-		w.Lo = math.Max(nextDown(math.Sqrt(a.Lo)), 0)
+		w.Lo = math.Max(NextDown(math.Sqrt(a.Lo)), 0)
 	}
 	if a.Hi > 0 {
-		w.Hi = nextUp(math.Sqrt(a.Hi))
+		w.Hi = NextUp(math.Sqrt(a.Hi))
 	}
 	return w, a.Lo >= 0
 }

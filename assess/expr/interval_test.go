@@ -244,12 +244,12 @@ func TestIntervalArithmeticMethods(t *testing.T) {
 	if !inBig(s, ex) || s.Lo == s.Hi {
 		t.Errorf("0.1+0.2: %v", s)
 	}
-	if nextDown(math.Inf(1)) != math.MaxFloat64 || nextUp(math.Inf(-1)) != -math.MaxFloat64 {
-		t.Error("nextDown(+Inf) or nextUp(−Inf)")
+	if NextDown(math.Inf(1)) != math.MaxFloat64 || NextUp(math.Inf(-1)) != -math.MaxFloat64 {
+		t.Error("NextDown(+Inf) or NextUp(−Inf)")
 	}
 	for _, x := range []float64{1, -1, 0x1p-1074, -0x1p-1074, 0, math.MaxFloat64, 3.7e-310} {
-		if d := nextDown(x); d != math.Nextafter(x, math.Inf(-1)) && !(x == 0 && d == -0x1p-1074) {
-			t.Errorf("nextDown(%v) = %v, math.Nextafter %v", x, d, math.Nextafter(x, math.Inf(-1)))
+		if d := NextDown(x); d != math.Nextafter(x, math.Inf(-1)) && !(x == 0 && d == -0x1p-1074) {
+			t.Errorf("NextDown(%v) = %v, math.Nextafter %v", x, d, math.Nextafter(x, math.Inf(-1)))
 		}
 	}
 }

@@ -280,7 +280,7 @@ func (s *ivState) stepSlope(in *instr) {
 		w, c = ivLog(a, in.op == opLog10)
 		den := a
 		if in.op == opLog10 {
-			den = ivMul(a, Interval{nextDown(math.Ln10), nextUp(math.Ln10)})
+			den = ivMul(a, Interval{NextDown(math.Ln10), NextUp(math.Ln10)})
 		}
 		wd, _ = ivDiv(da, den)
 	case opSqrt:
