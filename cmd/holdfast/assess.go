@@ -17,7 +17,6 @@ import (
 	"holdfast/assess/gate"
 	"holdfast/assess/study"
 	"holdfast/report"
-	"holdfast/sample"
 )
 
 func newAssessCmd() *cobra.Command {
@@ -92,15 +91,15 @@ result an uninterrupted run gives. The file is removed when the run ends.`,
 			if err := checkFormat(format, "table", "json"); err != nil {
 				return err
 			}
-			kind, err := sample.ParsePlan(plan)
+			kind, err := planFlag(plan)
 			if err != nil {
-				return badInput(fmt.Errorf("--plan: %w", err))
+				return err
 			}
-			if draws < 1 || draws > assess.MaxDraws {
-				return badInput(fmt.Errorf("--draws must be between 1 and %d, got %d", assess.MaxDraws, draws))
+			if err := checkDraws(draws); err != nil {
+				return err
 			}
-			if workers < 0 {
-				return badInput(fmt.Errorf("--workers must be 0 (all cores) or more, got %d", workers))
+			if err := checkWorkers(workers); err != nil {
+				return err
 			}
 			if halfWidth < 0 || halfWidth >= 0.5 {
 				return badInput(fmt.Errorf("--until-halfwidth must be in (0, 0.5), got %g", halfWidth))
@@ -244,7 +243,7 @@ result an uninterrupted run gives. The file is removed when the run ends.`,
 			}
 			err = finishAssess(cmd, assessOutput{
 				model: m, scenario: m.Scenario, opt: opt, outcome: outcome, command: command, version: version,
-				reqs: reqs, format: format, quiet: quiet, out: outFile, outName: out, reports: reports, staged: []*report.Staged{csvOut},
+				reqs: reqs, format: format, quiet: quiet, files: resultFiles{out: outFile, reports: reports, staged: []*report.Staged{csvOut}},
 			})
 			if err == nil || isGate(err) {
 				removeCheckpoint(checkpoint)

@@ -1,9 +1,9 @@
 package main
 
 import (
-	"bytes"
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -30,15 +30,12 @@ type assessOutput struct {
 	reqs     []gate.Requirement
 	format   string
 	quiet    bool
-	out      *report.Staged // the --out file, or nil
-	outName  string
-	reports  *report.Reports  // nil without --report
-	staged   []*report.Staged // further outputs to commit together (nil entries skipped)
+	files    resultFiles // --out, --report and further outputs (--draws-csv)
 }
 
-// finishAssess builds the result document, writes every output (they
-// appear together or not at all), prints the table or the JSON, and
-// returns the gate's error when a requirement is not met.
+// finishAssess builds the result document, writes every output and
+// prints the table or the JSON (resultFiles.write), and returns the gate's
+// error when a requirement is not met.
 func finishAssess(cmd *cobra.Command, a assessOutput) error {
 	s := a.scenario
 	res := a.outcome.Result
@@ -55,43 +52,11 @@ func finishAssess(cmd *cobra.Command, a assessOutput) error {
 		return badInput(err)
 	}
 	doc.Requirements = report.NewRequirementsJSON(outs)
-	var raw bytes.Buffer
-	if err := report.WriteJSON(&raw, doc); err != nil {
-		return failed(err)
-	}
-	if a.out != nil {
-		if _, err := a.out.Write(raw.Bytes()); err != nil {
-			return failed(err)
-		}
-	}
-	if a.reports != nil {
-		if err := renderReports(a.reports, raw.Bytes()); err != nil {
-			return failed(err)
-		}
-	}
-	// Everything is written: make the files appear together.
-	for _, st := range append(a.staged, a.out) {
-		if st != nil {
-			if err := st.Commit(); err != nil {
-				return failed(err)
-			}
-		}
-	}
-	w := cmd.OutOrStdout()
-	if a.reports != nil && !a.quiet {
-		fmt.Fprintf(cmd.ErrOrStderr(), "Wrote %s.\n", describeWritten(a.reports.Written()))
-	}
-	if a.format == "json" {
-		if _, err := w.Write(raw.Bytes()); err != nil {
-			return failed(err)
-		}
-		return gateError(outs)
-	}
-	if a.quiet && (a.out != nil || a.reports != nil) {
-		return gateError(outs)
-	}
-	if err := report.AssessTableCertified(w, s.Title, s.State.Unit, res, a.outcome.Screening, cert, outs, painter(w)); err != nil {
-		return failed(err)
+	err = a.files.write(cmd, doc, a.format, a.quiet, func(w io.Writer) error {
+		return report.AssessTableCertified(w, s.Title, s.State.Unit, res, a.outcome.Screening, cert, outs, painter(w))
+	})
+	if err != nil {
+		return err
 	}
 	return gateError(outs)
 }

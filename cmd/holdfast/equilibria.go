@@ -50,11 +50,11 @@ a draw a run reports (a failure, a disagreement) can be replayed alone.`,
 			var kind sample.PlanKind
 			if replay {
 				var err error
-				if kind, err = sample.ParsePlan(plan); err != nil {
-					return badInput(fmt.Errorf("--plan: %w", err))
+				if kind, err = planFlag(plan); err != nil {
+					return err
 				}
-				if draws < 1 || draws > assess.MaxDraws {
-					return badInput(fmt.Errorf("--draws must be between 1 and %d, got %d", assess.MaxDraws, draws))
+				if err := checkDraws(draws); err != nil {
+					return err
 				}
 				if draw < 0 || draw >= assess.MaxDraws {
 					return badInput(fmt.Errorf("--draw must be between 0 and %d, got %d", assess.MaxDraws-1, draw))

@@ -29,10 +29,7 @@ type equilibriaJSON struct {
 
 func replayDraw(t *testing.T, args ...string) equilibriaJSON {
 	t.Helper()
-	stdout, stderr, code := holdfast(t, append([]string{"equilibria", "demo:lake", "--format", "json"}, args...)...)
-	if code != exitOK {
-		t.Fatalf("%v: exit %d\n%s", args, code, stderr)
-	}
+	stdout := runOK(t, append([]string{"equilibria", "demo:lake", "--format", "json"}, args...)...)
 	var doc equilibriaJSON
 	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
 		t.Fatalf("%v: %v\n%s", args, err, stdout)
@@ -90,9 +87,7 @@ func TestEquilibriaDrawReplaysAssess(t *testing.T) {
 	// the same parameters, bit for bit, and the same regime.
 	dir := t.TempDir()
 	csvPath := filepath.Join(dir, "draws.csv")
-	if _, stderr, code := holdfast(t, "assess", "demo:lake", "--seed", "5", "--draws", "40", "--draws-csv", csvPath, "--quiet", "--format", "json"); code != exitOK {
-		t.Fatalf("assess: exit %d\n%s", code, stderr)
-	}
+	runOK(t, "assess", "demo:lake", "--seed", "5", "--draws", "40", "--draws-csv", csvPath, "--quiet", "--format", "json")
 	f, err := os.Open(csvPath)
 	if err != nil {
 		t.Fatal(err)
@@ -151,13 +146,6 @@ func TestEquilibriaDrawBadFlags(t *testing.T) {
 		{[]string{"--draw", "x"}, "--draw"},
 	}
 	for _, c := range cases {
-		stdout, stderr, code := holdfast(t, append([]string{"equilibria", "demo:lake"}, c.args...)...)
-		if code != exitBad {
-			t.Errorf("%v: exit %d, want %d\n%s", c.args, code, exitBad, stderr)
-		}
-		if !strings.Contains(stderr, c.want) || stdout != "" {
-			t.Errorf("%v: stderr %q, stdout %q", c.args, stderr, stdout)
-		}
-		noTrace(t, stderr)
+		expectBad(t, append([]string{"equilibria", "demo:lake"}, c.args...), c.want)
 	}
 }

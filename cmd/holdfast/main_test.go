@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"encoding/json"
 	"os"
 	"path/filepath"
@@ -9,71 +8,23 @@ import (
 	"testing"
 )
 
-// holdfast runs the command line in-process and returns stdout, stderr and
-// the exit status.
-func holdfast(t *testing.T, args ...string) (string, string, int) {
-	t.Helper()
-	var out, errb bytes.Buffer
-	code := run(args, &out, &errb)
-	return out.String(), errb.String(), code
-}
-
-// noTrace fails when output looks like a Go panic or stack trace.
-func noTrace(t *testing.T, s string) {
-	t.Helper()
-	for _, bad := range []string{"panic:", "goroutine ", ".go:", "runtime."} {
-		if strings.Contains(s, bad) {
-			t.Errorf("output contains %q:\n%s", bad, s)
-		}
-	}
-}
-
 func TestBadCatalogueThroughCommands(t *testing.T) {
 	// Every malformed scenario in testdata/bad, through each command that
 	// reads scenarios: exit status 2, the expected first error line, no
 	// stack trace, nothing on stdout, no file written.
-	dir, err := filepath.Abs(filepath.Join("..", "..", "testdata", "bad"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Chdir(dir)
-	files, _ := filepath.Glob("*.yaml")
-	if len(files) < 40 {
-		t.Fatalf("catalogue holds %d cases", len(files))
-	}
 	outDir := t.TempDir()
-	for _, file := range files {
-		raw, err := os.ReadFile(strings.TrimSuffix(file, ".yaml") + ".want")
-		if err != nil {
-			t.Fatal(err)
-		}
-		want := "holdfast: " + strings.TrimRight(string(raw), "\n")
-		for _, cmd := range [][]string{
-			{"equilibria", file},
-			{"assess", file, "--draws", "10", "--out", filepath.Join(outDir, "r.json"), "--draws-csv", filepath.Join(outDir, "d.csv")},
-			{"assess", file, "--draws", "10", "--certify", "--shard", "1/2", "--out", filepath.Join(outDir, "part-{shard}.json")},
-			{"assess", file, "--draws", "10", "--checkpoint", filepath.Join(outDir, "state.json"), "--report", filepath.Join(outDir, "r.html")},
-		} {
-			stdout, stderr, code := holdfast(t, cmd...)
-			if code != exitBad {
-				t.Errorf("%v: exit %d, want 2\n%s", cmd, code, stderr)
-			}
-			if first, _, _ := strings.Cut(stderr, "\n"); first != want {
-				t.Errorf("%v:\n got: %s\nwant: %s", cmd, first, want)
-			}
-			if stdout != "" {
-				t.Errorf("%v: wrote to stdout: %q", cmd, stdout)
-			}
-			noTrace(t, stderr)
-		}
-	}
-	if left, _ := os.ReadDir(outDir); len(left) != 0 {
-		t.Errorf("bad input left files behind: %v", left)
-	}
+	expectBadCatalogue(t,
+		[]string{"equilibria"},
+		[]string{"assess", "--draws", "10", "--out", filepath.Join(outDir, "r.json"), "--draws-csv", filepath.Join(outDir, "d.csv")},
+		[]string{"assess", "--draws", "10", "--certify", "--shard", "1/2", "--out", filepath.Join(outDir, "part-{shard}.json")},
+		[]string{"assess", "--draws", "10", "--checkpoint", filepath.Join(outDir, "state.json"), "--report", filepath.Join(outDir, "r.html")},
+	)
+	noneLeft(t, outDir)
 }
 
 func TestBadFlags(t *testing.T) {
-	// Usage errors: exit 2 with a message naming the flag, no file written.
+	// Usage errors: exit 2 with a message naming the flag, nothing on
+	// stdout, no stack trace, no file written.
 	outDir := t.TempDir()
 	out := filepath.Join(outDir, "r.json")
 	cases := []struct {
@@ -104,26 +55,14 @@ func TestBadFlags(t *testing.T) {
 		{[]string{"assess", "demo:lake", "--certify=maybe", "--out", out}, "--certify"},
 	}
 	for _, c := range cases {
-		_, stderr, code := holdfast(t, c.args...)
-		if code != exitBad {
-			t.Errorf("%v: exit %d, want 2 (%s)", c.args, code, stderr)
-		}
-		if !strings.Contains(stderr, c.want) {
-			t.Errorf("%v: message %q does not mention %q", c.args, stderr, c.want)
-		}
-		noTrace(t, stderr)
+		expectBad(t, c.args, c.want)
 	}
-	if left, _ := os.ReadDir(outDir); len(left) != 0 {
-		t.Errorf("bad flags left files behind: %v", left)
-	}
+	noneLeft(t, outDir)
 }
 
 func TestEquilibriaDemos(t *testing.T) {
 	for _, demo := range []string{"lake", "fishery", "reactor", "tank"} {
-		stdout, stderr, code := holdfast(t, "equilibria", "demo:"+demo)
-		if code != 0 {
-			t.Fatalf("%s: exit %d: %s", demo, code, stderr)
-		}
+		stdout := runOK(t, "equilibria", "demo:"+demo)
 		if !strings.Contains(stdout, "qualified expert") {
 			t.Errorf("%s: table lacks the caution notice", demo)
 		}
@@ -131,10 +70,7 @@ func TestEquilibriaDemos(t *testing.T) {
 }
 
 func TestEquilibriaJSONShape(t *testing.T) {
-	stdout, stderr, code := holdfast(t, "equilibria", "demo:lake", "--format", "json")
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	stdout := runOK(t, "equilibria", "demo:lake", "--format", "json")
 	var doc struct {
 		Equilibria []map[string]any `json:"equilibria"`
 		Current    map[string]any   `json:"current"`
@@ -168,10 +104,7 @@ func TestSetOverrides(t *testing.T) {
 	// Lake demo with the loading raised well past the upper fold: only the
 	// turbid state remains (Carpenter, Ludwig & Brock 1999: the clear state
 	// is lost beyond the fold in loading).
-	stdout, stderr, code := holdfast(t, "equilibria", "demo:lake", "--set", "L=0.3", "--format", "json")
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	stdout := runOK(t, "equilibria", "demo:lake", "--set", "L=0.3", "--format", "json")
 	var doc struct {
 		Equilibria []struct {
 			X     float64 `json:"x"`
@@ -188,27 +121,14 @@ func TestSetOverrides(t *testing.T) {
 
 func TestAssessDeterministicAcrossWorkers(t *testing.T) {
 	// Draw i depends only on (seed, i): the same JSON for 1 and 8 workers.
-	var outs []string
-	for _, w := range []string{"1", "8"} {
-		stdout, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "3000", "--seed", "11", "--workers", w, "--format", "json")
-		if code != 0 {
-			t.Fatalf("exit %d: %s", code, stderr)
-		}
-		outs = append(outs, stdout)
-	}
-	if outs[0] != outs[1] {
-		t.Error("JSON differs between 1 and 8 workers")
-	}
+	sameAcrossWorkers(t, []string{"assess", "demo:lake", "--draws", "3000", "--seed", "11", "--format", "json"}, "1", "8")
 }
 
 func TestAssessWritesFiles(t *testing.T) {
 	dir := t.TempDir()
 	out := filepath.Join(dir, "sub", "lake.json")
 	csvPath := filepath.Join(dir, "draws.csv")
-	_, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "500", "--out", out, "--draws-csv", csvPath, "--quiet")
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	runOK(t, "assess", "demo:lake", "--draws", "500", "--out", out, "--draws-csv", csvPath, "--quiet")
 	raw, err := os.ReadFile(out)
 	if err != nil {
 		t.Fatal(err)

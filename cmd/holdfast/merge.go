@@ -117,7 +117,7 @@ not met).`,
 			}
 			return finishAssess(cmd, assessOutput{
 				model: m, scenario: s, opt: opt, outcome: outcome, command: p0.Command, version: p0.Version,
-				reqs: reqs, format: format, quiet: quiet, out: outFile, outName: out, reports: reports,
+				reqs: reqs, format: format, quiet: quiet, files: resultFiles{out: outFile, reports: reports},
 			})
 		},
 	}

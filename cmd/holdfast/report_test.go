@@ -57,36 +57,20 @@ func TestGoldenMarkdownReports(t *testing.T) {
 	// numbers). Paths are relative, so the recorded command line is the
 	// same wherever the test runs.
 	gdir := goldenDir(t)
-	t.Chdir(t.TempDir())
-	_, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "1500", "--seed", "7", "--report", "lake.md",
+	inTempDir(t)
+	// check runs the command, which writes the report file md, and
+	// compares that with the golden file name.
+	check := func(name, md string, args ...string) {
+		t.Helper()
+		runOK(t, args...)
+		golden(t, gdir, name, mustRead(t, md))
+	}
+	check("assess-lake.md", "lake.md", "assess", "demo:lake", "--draws", "1500", "--seed", "7", "--report", "lake.md",
 		"--require", "E1 attracting >= 0.9", "--quiet")
-	if code != 0 {
-		t.Fatalf("assess: exit %d: %s", code, stderr)
-	}
-	md, err := os.ReadFile("lake.md")
-	if err != nil {
-		t.Fatal(err)
-	}
-	golden(t, gdir, "assess-lake.md", md)
-	_, stderr, code = holdfast(t, "sensitivity", "demo:lake", "--target", "E3", "--base", "128", "--seed", "3", "--report", "lake-sensitivity.md", "--quiet")
-	if code != 0 {
-		t.Fatalf("sensitivity: exit %d: %s", code, stderr)
-	}
-	md, err = os.ReadFile("lake-sensitivity.md")
-	if err != nil {
-		t.Fatal(err)
-	}
-	golden(t, gdir, "sensitivity-lake.md", md)
-	_, stderr, code = holdfast(t, "sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.4", "--track", "E1",
+	check("sensitivity-lake.md", "lake-sensitivity.md", "sensitivity", "demo:lake", "--target", "E3", "--base", "128", "--seed", "3",
+		"--report", "lake-sensitivity.md", "--quiet")
+	check("sweep-lake.md", "lake-sweep.md", "sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.4", "--track", "E1",
 		"--draws", "400", "--seed", "7", "--steps", "5", "--report", "lake-sweep.md", "--quiet")
-	if code != 0 {
-		t.Fatalf("sweep: exit %d: %s", code, stderr)
-	}
-	md, err = os.ReadFile("lake-sweep.md")
-	if err != nil {
-		t.Fatal(err)
-	}
-	golden(t, gdir, "sweep-lake.md", md)
 }
 
 // readTree returns every file under dir by relative path.
@@ -112,45 +96,40 @@ func TestReRenderingASavedResultIsByteIdentical(t *testing.T) {
 	// holds it; holdfast report on that file, in another folder, gives the
 	// same bytes for the Markdown, the HTML and every plot.
 	root := t.TempDir()
+	// sameTree checks that folder a holds at least atLeast files besides
+	// the result file, among them those named in want, and folder b the
+	// same files, byte for byte.
+	sameTree := func(a, b, result string, atLeast int, want ...string) {
+		t.Helper()
+		x, y := readTree(t, a), readTree(t, b)
+		delete(x, result)
+		if len(x) < atLeast || len(x) != len(y) {
+			t.Fatalf("%s: files %d and %d", filepath.Base(a), len(x), len(y))
+		}
+		for name, data := range x {
+			if !bytes.Equal(data, y[name]) {
+				t.Errorf("%s: %s differs after re-rendering", filepath.Base(a), name)
+			}
+		}
+		for _, name := range want {
+			if _, ok := x[filepath.FromSlash(name)]; !ok {
+				t.Errorf("%s: no %s", filepath.Base(a), name)
+			}
+		}
+	}
 	first, second := filepath.Join(root, "first"), filepath.Join(root, "second")
 	os.MkdirAll(first, 0o755)
 	t.Chdir(first)
-	_, stderr, code := holdfast(t, "assess", "demo:fishery", "--draws", "800", "--seed", "3", "--out", "r.json",
+	runOK(t, "assess", "demo:fishery", "--draws", "800", "--seed", "3", "--out", "r.json",
 		"--report", "r.md", "--report", "r.html", "--png", "--quiet")
-	if code != 0 {
-		t.Fatalf("assess: exit %d: %s", code, stderr)
-	}
 	t.Chdir(root)
-	_, stderr, code = holdfast(t, "report", filepath.Join("first", "r.json"), "--md", filepath.Join("second", "r.md"),
+	runOK(t, "report", filepath.Join("first", "r.json"), "--md", filepath.Join("second", "r.md"),
 		"--html", filepath.Join("second", "r.html"), "--png", "--quiet")
-	if code != 0 {
-		t.Fatalf("report: exit %d: %s", code, stderr)
-	}
-	a, b := readTree(t, first), readTree(t, second)
-	delete(a, "r.json")
-	if len(a) < 6 || len(a) != len(b) {
-		t.Fatalf("files %d and %d", len(a), len(b))
-	}
-	for name, data := range a {
-		if !bytes.Equal(data, b[name]) {
-			t.Errorf("%s differs after re-rendering", name)
-		}
-	}
-	for _, name := range []string{"r.md", "r.html", "r-plots/rate-band.svg", "r-plots/rate-band.png", "r-plots/convergence.svg"} {
-		if _, ok := a[filepath.FromSlash(name)]; !ok {
-			t.Errorf("no %s", name)
-		}
-	}
+	sameTree(first, second, "r.json", 6, "r.md", "r.html", "r-plots/rate-band.svg", "r-plots/rate-band.png", "r-plots/convergence.svg")
 	// The sensitivity result re-renders the same way.
 	t.Chdir(first)
-	_, stderr, code = holdfast(t, "sensitivity", "demo:fishery", "--target", "E3", "--output", "position", "--base", "64", "--out", "s.json", "--report", "s.html", "--quiet")
-	if code != 0 {
-		t.Fatalf("sensitivity: exit %d: %s", code, stderr)
-	}
-	_, stderr, code = holdfast(t, "report", "s.json", "--html", "s2.html", "--quiet")
-	if code != 0 {
-		t.Fatalf("report: exit %d: %s", code, stderr)
-	}
+	runOK(t, "sensitivity", "demo:fishery", "--target", "E3", "--output", "position", "--base", "64", "--out", "s.json", "--report", "s.html", "--quiet")
+	runOK(t, "report", "s.json", "--html", "s2.html", "--quiet")
 	x, _ := os.ReadFile("s.html")
 	y, _ := os.ReadFile("s2.html")
 	if len(x) == 0 || !bytes.Equal(x, y) {
@@ -160,32 +139,12 @@ func TestReRenderingASavedResultIsByteIdentical(t *testing.T) {
 	sweepDir, again := filepath.Join(root, "sweep"), filepath.Join(root, "sweep-again")
 	os.MkdirAll(sweepDir, 0o755)
 	t.Chdir(sweepDir)
-	_, stderr, code = holdfast(t, "sweep", "demo:reactor", "--driver", "a", "--from", "0.25", "--to", "0.08", "--track", "E1",
+	runOK(t, "sweep", "demo:reactor", "--driver", "a", "--from", "0.25", "--to", "0.08", "--track", "E1",
 		"--draws", "200", "--steps", "3", "--seed", "4", "--out", "w.json", "--report", "w.md", "--report", "w.html", "--png", "--quiet")
-	if code != 0 {
-		t.Fatalf("sweep: exit %d: %s", code, stderr)
-	}
 	t.Chdir(root)
-	_, stderr, code = holdfast(t, "report", filepath.Join("sweep", "w.json"), "--md", filepath.Join("sweep-again", "w.md"),
+	runOK(t, "report", filepath.Join("sweep", "w.json"), "--md", filepath.Join("sweep-again", "w.md"),
 		"--html", filepath.Join("sweep-again", "w.html"), "--png", "--quiet")
-	if code != 0 {
-		t.Fatalf("report of the sweep: exit %d: %s", code, stderr)
-	}
-	a, b = readTree(t, sweepDir), readTree(t, again)
-	delete(a, "w.json")
-	if len(a) != len(b) {
-		t.Fatalf("sweep files %d and %d", len(a), len(b))
-	}
-	for name, data := range a {
-		if !bytes.Equal(data, b[name]) {
-			t.Errorf("sweep %s differs after re-rendering", name)
-		}
-	}
-	for _, name := range []string{"w.md", "w.html", "w-plots/critical-values.svg", "w-plots/critical-values.png", "w-plots/curve-attracting.svg"} {
-		if _, ok := a[filepath.FromSlash(name)]; !ok {
-			t.Errorf("no %s", name)
-		}
-	}
+	sameTree(sweepDir, again, "w.json", 0, "w.md", "w.html", "w-plots/critical-values.svg", "w-plots/critical-values.png", "w-plots/curve-attracting.svg")
 }
 
 func TestRequireGateExitStatus(t *testing.T) {
@@ -193,9 +152,7 @@ func TestRequireGateExitStatus(t *testing.T) {
 	// attracts in about 98% of draws, E2 never does, E3 in about 80%.
 	dir := t.TempDir()
 	saved := filepath.Join(dir, "lake.json")
-	if _, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "400", "--seed", "7", "--out", saved, "--quiet"); code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	runOK(t, "assess", "demo:lake", "--draws", "400", "--seed", "7", "--out", saved, "--quiet")
 	cases := []struct {
 		reqs   []string
 		code   int
@@ -248,20 +205,12 @@ func TestRequireGateExitStatus(t *testing.T) {
 		}
 	}
 	// Without a current state the verdict "current" is bad input.
-	lake, _ := os.ReadFile(filepath.Join("..", "..", "scenarios", "demos", "lake.yaml"))
-	noCurrent := filepath.Join(dir, "nc.yaml")
-	os.WriteFile(noCurrent, []byte(strings.Replace(string(lake), "  current: 1.2\n", "", 1)), 0o644)
-	if _, stderr, code := holdfast(t, "assess", noCurrent, "--draws", "50", "--require", "E1 current >= 0.1"); code != exitBad || !strings.Contains(stderr, "needs a current state") {
-		t.Errorf("current without a current state: exit %d %s", code, stderr)
-	}
+	noCurrent := lakeWithoutCurrent(t, dir, "nc.yaml")
+	expectBad(t, []string{"assess", noCurrent, "--draws", "50", "--require", "E1 current >= 0.1"}, "needs a current state")
 	// A sensitivity result has no probabilities to gate.
 	sens := filepath.Join(dir, "s.json")
-	if _, stderr, code := holdfast(t, "sensitivity", "demo:lake", "--target", "E3", "--base", "64", "--out", sens, "--quiet"); code != 0 {
-		t.Fatalf("sensitivity: %s", stderr)
-	}
-	if _, stderr, code := holdfast(t, "report", sens, "--require", "E3 exists >= 0.5"); code != exitBad || !strings.Contains(stderr, "requirements apply to assess results") {
-		t.Errorf("gate on sensitivity: exit %d %s", code, stderr)
-	}
+	runOK(t, "sensitivity", "demo:lake", "--target", "E3", "--base", "64", "--out", sens, "--quiet")
+	expectBad(t, []string{"report", sens, "--require", "E3 exists >= 0.5"}, "requirements apply to assess results")
 }
 
 func TestTerminalOutputHasNoColourOffTerminal(t *testing.T) {
@@ -285,9 +234,7 @@ func TestTerminalOutputHasNoColourOffTerminal(t *testing.T) {
 func TestReportBadInput(t *testing.T) {
 	dir := t.TempDir()
 	good := filepath.Join(dir, "good.json")
-	if _, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "200", "--out", good, "--quiet"); code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	runOK(t, "assess", "demo:lake", "--draws", "200", "--out", good, "--quiet")
 	raw, _ := os.ReadFile(good)
 	write := func(name string, data []byte) string {
 		p := filepath.Join(dir, name)
@@ -335,35 +282,18 @@ func TestReportBadInput(t *testing.T) {
 		{[]string{"sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.3", "--track", "E1", "--draws", "20", "--report", good + ".md", "--plots", good}, "is a file, not a folder"},
 	}
 	for _, c := range cases {
-		stdout, stderr, code := holdfast(t, c.args...)
-		if code != exitBad {
-			t.Errorf("%v: exit %d, want 2 (%s)", c.args, code, stderr)
-		}
-		if !strings.Contains(stderr, c.want) {
-			t.Errorf("%v: message %q does not mention %q", c.args, stderr, c.want)
-		}
-		if stdout != "" {
-			t.Errorf("%v: wrote to stdout %q", c.args, stdout)
-		}
-		noTrace(t, stderr)
+		expectBad(t, c.args, c.want)
 	}
 	// The JSON of holdfast equilibria carries the envelope but is refused
 	// clearly, leaving no report.
-	eqOut, stderr, code := holdfast(t, "equilibria", "demo:lake", "--format", "json")
-	if code != 0 {
-		t.Fatalf("equilibria: exit %d: %s", code, stderr)
-	}
-	if _, stderr, code := holdfast(t, "report", write("equilibria.json", []byte(eqOut)), "--md", out); code != exitBad || !strings.Contains(stderr, "does not render equilibria results") {
-		t.Errorf("equilibria result: exit %d: %s", code, stderr)
-	}
+	eqOut := runOK(t, "equilibria", "demo:lake", "--format", "json")
+	expectBad(t, []string{"report", write("equilibria.json", []byte(eqOut)), "--md", out}, "does not render equilibria results")
 	if _, err := os.Stat(filepath.Join(dir, "out", "r.md")); err == nil {
 		t.Error("a refused result left a report")
 	}
 	// A sweep result renders; it has no probabilities to gate.
 	sw := filepath.Join(dir, "sweep.json")
-	if _, stderr, code := holdfast(t, "sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.3", "--track", "E1", "--draws", "40", "--out", sw, "--quiet"); code != 0 {
-		t.Fatalf("sweep: exit %d: %s", code, stderr)
-	}
+	runOK(t, "sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.3", "--track", "E1", "--draws", "40", "--out", sw, "--quiet")
 	swMD := filepath.Join(dir, "sweep-report", "sweep.md")
 	if stdout, stderr, code := holdfast(t, "report", sw, "--md", swMD); code != 0 || !strings.Contains(stdout, "Wrote ") || !strings.Contains(stdout, "qualified expert") {
 		t.Errorf("sweep result: exit %d: %s%s", code, stdout, stderr)
@@ -371,39 +301,23 @@ func TestReportBadInput(t *testing.T) {
 	if b, err := os.ReadFile(swMD); err != nil || !strings.Contains(string(b), "## Tipping distribution") {
 		t.Errorf("sweep report: %v", err)
 	}
-	if _, stderr, code := holdfast(t, "report", sw, "--require", "E1 exists >= 0.5"); code != exitBad || !strings.Contains(stderr, "requirements apply to assess results") {
-		t.Errorf("gate on a sweep: exit %d %s", code, stderr)
-	}
+	expectBad(t, []string{"report", sw, "--require", "E1 exists >= 0.5"}, "requirements apply to assess results")
 	if b, _ := os.ReadFile(good); !bytes.Equal(b, raw) {
 		t.Error("the result file was overwritten")
 	}
 	// Report paths in missing folders are created; the scenario file is
 	// never overwritten, whatever the paths.
 	deep := filepath.Join(dir, "a", "b", "c", "r.html")
-	if _, stderr, code := holdfast(t, "report", good, "--html", deep, "--quiet"); code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	runOK(t, "report", good, "--html", deep, "--quiet")
 	if _, err := os.Stat(deep); err != nil {
 		t.Error(err)
 	}
 	scen := write("own.yaml", mustRead(t, filepath.Join("..", "..", "scenarios", "demos", "lake.yaml")))
 	before, _ := os.ReadFile(scen)
-	_, stderr, code = holdfast(t, "assess", scen, "--draws", "50", "--report", filepath.Join(dir, "own.md"), "--plots", filepath.Dir(scen), "--quiet")
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	runOK(t, "assess", scen, "--draws", "50", "--report", filepath.Join(dir, "own.md"), "--plots", filepath.Dir(scen), "--quiet")
 	if after, _ := os.ReadFile(scen); !bytes.Equal(before, after) {
 		t.Error("the scenario file changed")
 	}
-}
-
-func mustRead(t *testing.T, p string) []byte {
-	t.Helper()
-	b, err := os.ReadFile(p)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return b
 }
 
 func TestCommandLineIsRecorded(t *testing.T) {
@@ -411,11 +325,8 @@ func TestCommandLineIsRecorded(t *testing.T) {
 	// order given, except those that never change a result (--workers,
 	// --format, outputs), so that one run, its shards merged and a
 	// resumed run record the same command.
-	stdout, stderr, code := holdfast(t, "assess", "demo:tank", "--draws", "64", "--seed", "9", "--workers", "3",
+	stdout := runOK(t, "assess", "demo:tank", "--draws", "64", "--seed", "9", "--workers", "3",
 		"--set", "Kp=2", "--set", "hs=1.5", "--plan", "qmc", "--format", "json")
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
 	var doc struct {
 		Command []string `json:"command"`
 		Kind    string   `json:"kind"`
@@ -447,10 +358,7 @@ func TestCommandLineIsRecorded(t *testing.T) {
 func TestEquilibriaJSONEnvelope(t *testing.T) {
 	// The JSON of holdfast equilibria opens with the envelope of every
 	// result, and keeps the keys of its analysis.
-	stdout, stderr, code := holdfast(t, "equilibria", "demo:lake", "--format", "json")
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	stdout := runOK(t, "equilibria", "demo:lake", "--format", "json")
 	var doc map[string]any
 	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
 		t.Fatal(err)

@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"holdfast/assess"
+	"holdfast/sample"
 	"holdfast/scenarios"
 )
 
@@ -59,4 +60,29 @@ func checkFormat(format string, allowed ...string) error {
 		}
 	}
 	return badInput(fmt.Errorf("--format %q: want one of %s", format, strings.Join(allowed, ", ")))
+}
+
+// planFlag reads a --plan value: random, lhs or qmc.
+func planFlag(plan string) (sample.PlanKind, error) {
+	kind, err := sample.ParsePlan(plan)
+	if err != nil {
+		return kind, badInput(fmt.Errorf("--plan: %w", err))
+	}
+	return kind, nil
+}
+
+// checkDraws validates a --draws value: from 1 to assess.MaxDraws.
+func checkDraws(draws int) error {
+	if draws < 1 || draws > assess.MaxDraws {
+		return badInput(fmt.Errorf("--draws must be between 1 and %d, got %d", assess.MaxDraws, draws))
+	}
+	return nil
+}
+
+// checkWorkers validates a --workers value: 0 (all cores) or more.
+func checkWorkers(workers int) error {
+	if workers < 0 {
+		return badInput(fmt.Errorf("--workers must be 0 (all cores) or more, got %d", workers))
+	}
+	return nil
 }

@@ -1,9 +1,9 @@
 package main
 
 import (
-	"bytes"
 	"errors"
 	"fmt"
+	"io"
 
 	"github.com/spf13/cobra"
 
@@ -66,25 +66,18 @@ The result depends only on the scenario, the options and the seed, not on
 			if base < 2 || base > sensitivity.MaxBase {
 				return badInput(fmt.Errorf("--base must be between 2 and %d, got %d", sensitivity.MaxBase, base))
 			}
-			if workers < 0 {
-				return badInput(fmt.Errorf("--workers must be 0 (all cores) or more, got %d", workers))
+			if err := checkWorkers(workers); err != nil {
+				return err
 			}
 			m, err := loadModel(args[0], sets)
 			if err != nil {
 				return err
 			}
-			var outFile *report.Staged
-			if out != "" {
-				if outFile, err = report.Stage(out, m.Scenario.File); err != nil {
-					return badInput(err)
-				}
-				defer outFile.Abort()
-			}
-			reports, err := rf.prepare(m.Scenario.File, out)
+			files, err := stageResult(out, &rf, m.Scenario.File)
 			if err != nil {
 				return err
 			}
-			defer reports.Abort()
+			defer files.abort()
 			opt := sensitivity.Options{Target: target, Output: o, Base: base, Seed: seed, Workers: workers}
 			var endBar func()
 			opt.Progress, endBar = progress(cmd.ErrOrStderr(), quiet, base*4)
@@ -100,35 +93,9 @@ The result depends only on the scenario, the options and the seed, not on
 			s := m.Scenario
 			doc := report.NewSensitivityJSON(version, s.File, s.Title, res)
 			doc.SetRun(report.RunInfo{Command: commandLine(cmd, args), Scenario: s})
-			var raw bytes.Buffer
-			if err := report.WriteJSON(&raw, doc); err != nil {
-				return failed(err)
-			}
-			if reports != nil {
-				if err := renderReports(reports, raw.Bytes()); err != nil {
-					return failed(err)
-				}
-				if !quiet {
-					fmt.Fprintf(cmd.ErrOrStderr(), "Wrote %s.\n", describeWritten(reports.Written()))
-				}
-			}
-			if outFile != nil {
-				if _, err := outFile.Write(raw.Bytes()); err != nil {
-					return failed(err)
-				}
-				if err := outFile.Commit(); err != nil {
-					return failed(err)
-				}
-			}
-			w := cmd.OutOrStdout()
-			if format == "json" {
-				_, err := w.Write(raw.Bytes())
-				return failed(err)
-			}
-			if quiet && (out != "" || reports != nil) {
-				return nil
-			}
-			return failed(report.SensitivityTable(w, s.Title, s.State.Unit, res))
+			return files.write(cmd, doc, format, quiet, func(w io.Writer) error {
+				return report.SensitivityTable(w, s.Title, s.State.Unit, res)
+			})
 		},
 	}
 	f := c.Flags()

@@ -13,14 +13,7 @@ func TestSensitivityBadInput(t *testing.T) {
 	// trace, nothing on stdout, no file written.
 	dir := t.TempDir()
 	out := filepath.Join(dir, "s.json")
-	lake, err := os.ReadFile(filepath.Join("..", "..", "scenarios", "demos", "lake.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	noCurrent := filepath.Join(t.TempDir(), "no-current.yaml")
-	if err := os.WriteFile(noCurrent, []byte(strings.Replace(string(lake), "  current: 1.2\n", "", 1)), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	noCurrent := lakeWithoutCurrent(t, t.TempDir(), "no-current.yaml")
 	cases := []struct {
 		args []string
 		want string
@@ -39,54 +32,19 @@ func TestSensitivityBadInput(t *testing.T) {
 		{[]string{"sensitivity"}, "arg"},
 	}
 	for _, c := range cases {
-		stdout, stderr, code := holdfast(t, c.args...)
-		if code != exitBad {
-			t.Errorf("%v: exit %d, want 2 (%s)", c.args, code, stderr)
-		}
-		if !strings.Contains(stderr, c.want) {
-			t.Errorf("%v: message %q does not mention %q", c.args, stderr, c.want)
-		}
-		if stdout != "" {
-			t.Errorf("%v: wrote to stdout", c.args)
-		}
-		noTrace(t, stderr)
+		expectBad(t, c.args, c.want)
 	}
-	if left, _ := os.ReadDir(dir); len(left) != 0 {
-		t.Errorf("bad input left files behind: %v", left)
-	}
+	noneLeft(t, dir)
 }
 
 func TestSensitivityBadCatalogue(t *testing.T) {
 	// Every malformed scenario of testdata/bad fails in sensitivity as in
 	// the other commands: exit 2 with the catalogue's first error line.
-	dir, err := filepath.Abs(filepath.Join("..", "..", "testdata", "bad"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Chdir(dir)
-	files, _ := filepath.Glob("*.yaml")
-	for _, file := range files {
-		raw, err := os.ReadFile(strings.TrimSuffix(file, ".yaml") + ".want")
-		if err != nil {
-			t.Fatal(err)
-		}
-		want := "holdfast: " + strings.TrimRight(string(raw), "\n")
-		_, stderr, code := holdfast(t, "sensitivity", file, "--target", "E1", "--base", "64")
-		if code != exitBad {
-			t.Errorf("%s: exit %d, want 2\n%s", file, code, stderr)
-		}
-		if first, _, _ := strings.Cut(stderr, "\n"); first != want {
-			t.Errorf("%s:\n got: %s\nwant: %s", file, first, want)
-		}
-		noTrace(t, stderr)
-	}
+	expectBadCatalogue(t, []string{"sensitivity", "--target", "E1", "--base", "64"})
 }
 
 func TestSensitivityJSON(t *testing.T) {
-	stdout, stderr, code := holdfast(t, "sensitivity", "demo:lake", "--target", "E1", "--output", "current", "--base", "256", "--format", "json")
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	stdout := runOK(t, "sensitivity", "demo:lake", "--target", "E1", "--output", "current", "--base", "256", "--format", "json")
 	var doc struct {
 		Target  string           `json:"target"`
 		Output  string           `json:"output"`
@@ -122,25 +80,12 @@ func TestSensitivityJSON(t *testing.T) {
 }
 
 func TestSensitivityDeterministicAcrossWorkers(t *testing.T) {
-	var outs []string
-	for _, w := range []string{"1", "4"} {
-		stdout, stderr, code := holdfast(t, "sensitivity", "demo:reactor", "--target", "E1", "--base", "128", "--workers", w, "--format", "json")
-		if code != 0 {
-			t.Fatalf("exit %d: %s", code, stderr)
-		}
-		outs = append(outs, stdout)
-	}
-	if outs[0] != outs[1] {
-		t.Error("JSON differs between 1 and 4 workers")
-	}
+	sameAcrossWorkers(t, []string{"sensitivity", "demo:reactor", "--target", "E1", "--base", "128", "--format", "json"}, "1", "4")
 }
 
 func TestSensitivityTableAndFile(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "sens.json")
-	stdout, stderr, code := holdfast(t, "sensitivity", "demo:fishery", "--target", "E3", "--output", "position", "--base", "128", "--out", out)
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	stdout := runOK(t, "sensitivity", "demo:fishery", "--target", "E3", "--output", "position", "--base", "128", "--out", out)
 	for _, want := range []string{"qualified expert", "Reading:", "c (fixed)", "Local view"} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("table lacks %q:\n%s", want, stdout)
@@ -156,10 +101,7 @@ func TestSensitivityTableAndFile(t *testing.T) {
 }
 
 func TestAssessReportsScreening(t *testing.T) {
-	stdout, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "600", "--format", "json")
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	stdout := runOK(t, "assess", "demo:lake", "--draws", "600", "--format", "json")
 	var doc struct {
 		Sensitivity struct {
 			Kept       int `json:"draws_used"`

@@ -216,13 +216,9 @@ func TestMergeBadInput(t *testing.T) {
 	// Parts that do not make one run, and files that are no parts: exit
 	// status 2, a message naming the file and what is wrong, no output
 	// file, no stack trace.
-	dir := t.TempDir()
-	t.Chdir(dir)
+	dir := inTempDir(t)
 	part := func(name string, extra ...string) string {
-		args := append([]string{"assess", "demo:tank", "--draws", "40", "--seed", "2", "--quiet", "--out", name}, extra...)
-		if _, stderr, code := holdfast(t, args...); code != 0 {
-			t.Fatalf("%v: exit %d: %s", args, code, stderr)
-		}
+		runOK(t, append([]string{"assess", "demo:tank", "--draws", "40", "--seed", "2", "--quiet", "--out", name}, extra...)...)
 		return name
 	}
 	p0 := part("p0.json", "--shard", "0/3")
@@ -268,18 +264,7 @@ func TestMergeBadInput(t *testing.T) {
 		{[]string{p0, p1, dir}, "is a directory"},
 		{[]string{}, "requires at least 1 arg"},
 	} {
-		args := append([]string{"merge", "--out", "merged.json", "--report", "merged.md"}, c.args...)
-		stdout, stderr, code := holdfast(t, args...)
-		if code != exitBad {
-			t.Errorf("%v: exit %d, want 2 (%s)", c.args, code, stderr)
-		}
-		if !strings.Contains(stderr, c.want) {
-			t.Errorf("%v: message %q does not mention %q", c.args, stderr, c.want)
-		}
-		if stdout != "" {
-			t.Errorf("%v: wrote to stdout", c.args)
-		}
-		noTrace(t, stderr)
+		expectBad(t, append([]string{"merge", "--out", "merged.json", "--report", "merged.md"}, c.args...), c.want)
 		for _, f := range []string{"merged.json", "merged.md", "merged-plots"} {
 			if _, err := os.Stat(f); err == nil {
 				t.Errorf("%v: left %s behind", c.args, f)
@@ -291,12 +276,8 @@ func TestMergeBadInput(t *testing.T) {
 		t.Errorf("merge with an edited title: exit %d, %s", code, stderr)
 	}
 	// A part given as a result to render, and merged output over a part.
-	if _, stderr, code := holdfast(t, "report", p0, "--md", "r.md"); code != exitBad || !strings.Contains(stderr, "merge all the parts") {
-		t.Errorf("report of a part: exit %d, %s", code, stderr)
-	}
-	if _, stderr, code := holdfast(t, "merge", p0, p1, p2, "--out", p1); code != exitBad || !strings.Contains(stderr, "overwrite an input") {
-		t.Errorf("merge over a part: exit %d, %s", code, stderr)
-	}
+	expectBad(t, []string{"report", p0, "--md", "r.md"}, "merge all the parts")
+	expectBad(t, []string{"merge", p0, p1, p2, "--out", p1}, "overwrite an input")
 	if _, stderr, code := holdfast(t, "merge", p0, p1, p2, "--out", "ok.json", "--quiet"); code != 0 {
 		t.Errorf("good merge: exit %d, %s", code, stderr)
 	}
@@ -304,9 +285,9 @@ func TestMergeBadInput(t *testing.T) {
 
 func TestShardAndCheckpointBadFlags(t *testing.T) {
 	// Usage errors of --shard, --checkpoint and --resume: exit 2, a
-	// message naming the flag, no file written.
-	dir := t.TempDir()
-	t.Chdir(dir)
+	// message naming the flag, nothing on stdout, no stack trace, no file
+	// written.
+	dir := inTempDir(t)
 	if err := os.WriteFile("old-state.json", []byte("{}"), 0o644); err != nil {
 		t.Fatal(err)
 	}
@@ -329,27 +310,12 @@ func TestShardAndCheckpointBadFlags(t *testing.T) {
 		{[]string{"--checkpoint", "s.json", "--draws-csv", "d.csv"}, "--draws-csv"},
 		{[]string{"--checkpoint", "s.json", "--checkpoint-every", "0s"}, "--checkpoint-every"},
 	} {
-		args := append([]string{"assess", "demo:lake", "--draws", "50", "--quiet"}, c.args...)
-		_, stderr, code := holdfast(t, args...)
-		if code != exitBad {
-			t.Errorf("%v: exit %d, want 2 (%s)", c.args, code, stderr)
-		}
-		if !strings.Contains(stderr, c.want) {
-			t.Errorf("%v: message %q does not mention %q", c.args, stderr, c.want)
-		}
-		noTrace(t, stderr)
+		expectBad(t, append([]string{"assess", "demo:lake", "--draws", "50", "--quiet"}, c.args...), c.want)
 	}
-	left, _ := os.ReadDir(dir)
-	for _, e := range left {
-		if e.Name() != "old-state.json" {
-			t.Errorf("left behind: %s", e.Name())
-		}
-	}
+	noneLeft(t, dir, "old-state.json")
 	// Resuming with other settings names the difference (a checkpoint
 	// made from a part file: the same form, another kind).
-	if _, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "50", "--quiet", "--shard", "0/1", "--out", "p.json"); code != 0 {
-		t.Fatalf("part: exit %d, %s", code, stderr)
-	}
+	runOK(t, "assess", "demo:lake", "--draws", "50", "--quiet", "--shard", "0/1", "--out", "p.json")
 	raw, err := os.ReadFile("p.json")
 	if err != nil {
 		t.Fatal(err)
@@ -358,9 +324,9 @@ func TestShardAndCheckpointBadFlags(t *testing.T) {
 	if err := os.WriteFile("state.json", ck, 0o644); err != nil {
 		t.Fatal(err)
 	}
-	_, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "50", "--seed", "4", "--quiet", "--checkpoint", "state.json", "--resume", "--out", "r.json")
-	if code != exitBad || !strings.Contains(stderr, "checkpoint of another run") || !strings.Contains(stderr, "--seed") {
-		t.Errorf("resume with another seed: exit %d, %s", code, stderr)
+	stderr := runBad(t, "assess", "demo:lake", "--draws", "50", "--seed", "4", "--quiet", "--checkpoint", "state.json", "--resume", "--out", "r.json")
+	if !strings.Contains(stderr, "checkpoint of another run") || !strings.Contains(stderr, "--seed") {
+		t.Errorf("resume with another seed: %s", stderr)
 	}
 	if _, err := os.Stat("r.json"); err == nil {
 		t.Error("a refused resume wrote its output")
@@ -370,9 +336,7 @@ func TestShardAndCheckpointBadFlags(t *testing.T) {
 	if _, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "50", "--quiet", "--checkpoint", "state.json", "--resume", "--out", "r.json"); code != 0 {
 		t.Errorf("resume: exit %d, %s", code, stderr)
 	}
-	if _, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "50", "--quiet", "--out", "whole.json"); code != 0 {
-		t.Fatalf("whole: exit %d, %s", code, stderr)
-	}
+	runOK(t, "assess", "demo:lake", "--draws", "50", "--quiet", "--out", "whole.json")
 	sameFiles(t, "r.json", "whole.json")
 }
 
@@ -394,10 +358,7 @@ parameters:
 	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	stdout, stderr, code := holdfast(t, "assess", path, "--draws", "200", "--check-sides", "--format", "json")
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	stdout := runOK(t, "assess", path, "--draws", "200", "--check-sides", "--format", "json")
 	var doc struct {
 		Equilibria []struct {
 			Semistable float64 `json:"p_semistable"`
@@ -418,7 +379,5 @@ parameters:
 	if len(doc.Equilibria) != 1 || doc.Equilibria[0].Semistable != 1 {
 		t.Errorf("equilibria %+v, want one semistable in every draw", doc.Equilibria)
 	}
-	if _, stderr, code := holdfast(t, "assess", path, "--draws", "20", "--check-sides", "--certify=false"); code != exitBad || !strings.Contains(stderr, "--check-sides") {
-		t.Errorf("--check-sides without certification: exit %d, %s", code, stderr)
-	}
+	expectBad(t, []string{"assess", path, "--draws", "20", "--check-sides", "--certify=false"}, "--check-sides")
 }

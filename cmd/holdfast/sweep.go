@@ -1,15 +1,14 @@
 package main
 
 import (
-	"bytes"
 	"errors"
 	"fmt"
+	"io"
 
 	"github.com/spf13/cobra"
 
 	"holdfast/assess/tipping"
 	"holdfast/report"
-	"holdfast/sample"
 )
 
 func newSweepCmd() *cobra.Command {
@@ -61,29 +60,22 @@ writes the report at once.`,
 			if err := checkFormat(format, "table", "json"); err != nil {
 				return err
 			}
-			kind, err := sample.ParsePlan(plan)
+			kind, err := planFlag(plan)
 			if err != nil {
-				return badInput(fmt.Errorf("--plan: %w", err))
+				return err
 			}
-			if workers < 0 {
-				return badInput(fmt.Errorf("--workers must be 0 (all cores) or more, got %d", workers))
+			if err := checkWorkers(workers); err != nil {
+				return err
 			}
 			m, err := loadModel(args[0], sets)
 			if err != nil {
 				return err
 			}
-			var outFile *report.Staged
-			if out != "" {
-				if outFile, err = report.Stage(out, m.Scenario.File); err != nil {
-					return badInput(err)
-				}
-				defer outFile.Abort()
-			}
-			reports, err := rf.prepare(m.Scenario.File, out)
+			files, err := stageResult(out, &rf, m.Scenario.File)
 			if err != nil {
 				return err
 			}
-			defer reports.Abort()
+			defer files.abort()
 			opt := tipping.Options{
 				Driver: driver, From: from, To: to, Track: track, Steps: steps, Risk: risk,
 				Draws: draws, Seed: seed, Plan: kind, Workers: workers,
@@ -102,39 +94,13 @@ writes the report at once.`,
 			s := m.Scenario
 			doc := report.NewSweepJSON(version, s.File, s.Title, res)
 			doc.SetRun(report.RunInfo{Command: commandLine(cmd, args), Scenario: s})
-			var raw bytes.Buffer
-			if err := report.WriteJSON(&raw, doc); err != nil {
-				return failed(err)
-			}
-			if reports != nil {
-				if err := renderReports(reports, raw.Bytes()); err != nil {
-					return failed(err)
+			return files.write(cmd, doc, format, quiet, func(w io.Writer) error {
+				driverUnit := ""
+				if j := s.ParamIndex(driver); j >= 0 {
+					driverUnit = s.Params[j].Unit
 				}
-				if !quiet {
-					fmt.Fprintf(cmd.ErrOrStderr(), "Wrote %s.\n", describeWritten(reports.Written()))
-				}
-			}
-			if outFile != nil {
-				if _, err := outFile.Write(raw.Bytes()); err != nil {
-					return failed(err)
-				}
-				if err := outFile.Commit(); err != nil {
-					return failed(err)
-				}
-			}
-			w := cmd.OutOrStdout()
-			if format == "json" {
-				_, err := w.Write(raw.Bytes())
-				return failed(err)
-			}
-			if quiet && (out != "" || reports != nil) {
-				return nil
-			}
-			driverUnit := ""
-			if j := s.ParamIndex(driver); j >= 0 {
-				driverUnit = s.Params[j].Unit
-			}
-			return failed(report.SweepTable(w, s.Title, s.State.Unit, driverUnit, res))
+				return report.SweepTable(w, s.Title, s.State.Unit, driverUnit, res)
+			})
 		},
 	}
 	f := c.Flags()

@@ -62,59 +62,21 @@ func TestSweepBadInput(t *testing.T) {
 		{[]string{"sweep"}, "arg"},
 	}
 	for _, c := range cases {
-		stdout, stderr, code := holdfast(t, c.args...)
-		if code != exitBad {
-			t.Errorf("%v: exit %d, want 2 (%s)", c.args, code, stderr)
-		}
-		if !strings.Contains(stderr, c.want) {
-			t.Errorf("%v: message %q does not mention %q", c.args, stderr, c.want)
-		}
-		if stdout != "" {
-			t.Errorf("%v: wrote to stdout: %q", c.args, stdout)
-		}
-		noTrace(t, stderr)
+		expectBad(t, c.args, c.want)
 	}
-	if left, _ := os.ReadDir(outDir); len(left) != 0 {
-		t.Errorf("bad input left files behind: %v", left)
-	}
+	noneLeft(t, outDir)
 }
 
 func TestSweepBadCatalogue(t *testing.T) {
 	// Every malformed scenario in testdata/bad through sweep: exit 2 and
 	// the catalogue's expected first line, before any sweep option is
 	// looked at.
-	dir, err := filepath.Abs(filepath.Join("..", "..", "testdata", "bad"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Chdir(dir)
-	files, _ := filepath.Glob("*.yaml")
-	if len(files) < 40 {
-		t.Fatalf("catalogue holds %d cases", len(files))
-	}
-	for _, file := range files {
-		raw, err := os.ReadFile(strings.TrimSuffix(file, ".yaml") + ".want")
-		if err != nil {
-			t.Fatal(err)
-		}
-		want := "holdfast: " + strings.TrimRight(string(raw), "\n")
-		_, stderr, code := holdfast(t, "sweep", file, "--driver", "a", "--from", "0", "--to", "1", "--track", "E1", "--draws", "10")
-		if code != exitBad {
-			t.Errorf("%s: exit %d, want 2\n%s", file, code, stderr)
-		}
-		if first, _, _ := strings.Cut(stderr, "\n"); first != want {
-			t.Errorf("%s:\n got: %s\nwant: %s", file, first, want)
-		}
-		noTrace(t, stderr)
-	}
+	expectBadCatalogue(t, []string{"sweep", "--driver", "a", "--from", "0", "--to", "1", "--track", "E1", "--draws", "10"})
 }
 
 func TestSweepJSONShape(t *testing.T) {
-	stdout, stderr, code := holdfast(t, "sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.4",
+	stdout := runOK(t, "sweep", "demo:lake", "--driver", "L", "--from", "0.05", "--to", "0.4",
 		"--track", "E1", "--draws", "400", "--steps", "3", "--risk", "0.1", "--format", "json")
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
 	var doc struct {
 		Driver   string `json:"driver"`
 		Track    string `json:"track"`
@@ -166,11 +128,8 @@ func TestSweepJSONShape(t *testing.T) {
 
 func TestSweepTableAndFile(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "sweep.json")
-	stdout, stderr, code := holdfast(t, "sweep", "demo:reactor", "--driver", "a", "--from", "0.25", "--to", "0.08",
+	stdout := runOK(t, "sweep", "demo:reactor", "--driver", "a", "--from", "0.25", "--to", "0.08",
 		"--track", "E1", "--draws", "300", "--steps", "2", "--out", out)
-	if code != 0 {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
 	for _, want := range []string{"Sweep of a from 0.25 to 0.08", "Safe limit at risk 5.0%", "qualified expert"} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("table lacks %q:\n%s", want, stdout)
@@ -187,11 +146,6 @@ func TestSweepTableAndFile(t *testing.T) {
 }
 
 func TestSweepDeterministicAcrossWorkers(t *testing.T) {
-	args := []string{"sweep", "demo:fishery", "--driver", "H", "--from", "15", "--to", "25", "--track", "E3",
-		"--draws", "500", "--steps", "2", "--format", "json"}
-	a, _, c1 := holdfast(t, append(args, "--workers", "1")...)
-	b, _, c2 := holdfast(t, append(args, "--workers", "3")...)
-	if c1 != 0 || c2 != 0 || a != b {
-		t.Errorf("sweep output differs between 1 and 3 workers (exit %d, %d)", c1, c2)
-	}
+	sameAcrossWorkers(t, []string{"sweep", "demo:fishery", "--driver", "H", "--from", "15", "--to", "25", "--track", "E3",
+		"--draws", "500", "--steps", "2", "--format", "json"}, "1", "3")
 }
