@@ -7,10 +7,7 @@ import (
 
 // assessDocument lays out the report of an assess result.
 func assessDocument(r *AssessJSON) *document {
-	d := &document{title: r.Title}
-	if d.title == "" {
-		d.title = "Equilibrium assessment"
-	}
+	d := titledDocument(r.Title, "Equilibrium assessment")
 	unit, symbol := "", "x"
 	if r.Model != nil {
 		unit, symbol = r.Model.State.Unit, r.Model.State.Symbol
@@ -117,10 +114,8 @@ func nominalClassPhrase(c string) string {
 }
 
 func assessMethod(d *document, r *AssessJSON) {
-	d.h2("Method")
 	s := r.Settings
-	if s == nil {
-		d.p(tx("The result file does not record the run's settings."))
+	if !methodHead(d, s != nil) {
 		return
 	}
 	draws := fmt.Sprintf("%d parameter sets were drawn by %s with seed %d", r.Draws, planPhrase(s.Plan), s.Seed)
@@ -162,11 +157,7 @@ func nominalSection(d *document, r *AssessJSON, symbol, unit string) {
 		t := table{head: []string{"", "x*" + inUnit(unit), "class", "order", "slope f'(x*)", "return time", "basin", "barrier below", "barrier above"},
 			right: []bool{false, true, false, true, true, true, false, true, true}}
 		for _, e := range n.Equilibria {
-			class := e.Class
-			if e.AttractsFrom != "" {
-				class += " (attracts from " + e.AttractsFrom + ")"
-			}
-			t.rows = append(t.rows, []string{e.Label, g(e.X), class, fmt.Sprint(e.Order), g(e.Slope), gp(e.ReturnTime),
+			t.rows = append(t.rows, []string{e.Label, g(e.X), attractsClass(e.Class, e.AttractsFrom), fmt.Sprint(e.Order), g(e.Slope), gp(e.ReturnTime),
 				fmt.Sprintf("[%s, %s]", g(e.Basin[0]), g(e.Basin[1])), gp(e.Barrier[0]), gp(e.Barrier[1])})
 		}
 		d.table(t)
@@ -261,11 +252,7 @@ func regimeSection(d *document, r *AssessJSON) {
 	d.p(tx("A regime is the ordered pattern of classes of all equilibria in a draw, from low to high state."))
 	t := table{head: []string{"pattern", "share of draws", "draws"}, right: []bool{false, true, true}}
 	for _, g := range r.Regimes {
-		p := strings.Join(g.Pattern, " / ")
-		if p == "" {
-			p = "(no equilibrium)"
-		}
-		t.rows = append(t.rows, []string{p, pctCI(g.P, g.CI, r.Assessed), fmt.Sprint(g.Count)})
+		t.rows = append(t.rows, []string{regimeName(g.Pattern), pctCI(g.P, g.CI, r.Assessed), fmt.Sprint(g.Count)})
 	}
 	d.table(t)
 }
@@ -312,19 +299,12 @@ func certificationSection(d *document, r *AssessJSON) {
 		d.p(tx("Scan and certification agree in every checked draw."))
 		return
 	}
-	var items [][]span
+	var items []string
 	for _, k := range c.Disagreements {
-		items = append(items, []span{tx(fmt.Sprintf("%s: %s (first: %s).", k.Reason, plural(k.Draws, "draw", "draws"), ints(k.First)))})
+		items = append(items, fmt.Sprintf("%s: %s (first: %s).", k.Reason, plural(k.Draws, "draw", "draws"), ints(k.First)))
 	}
 	d.pf("Scan and certification disagree in %s; each is listed under Warnings with the command that replays it.", plural(c.Disagreeing, "draw", "draws"))
-	d.list(items...)
-}
-
-func regimeName(p []string) string {
-	if len(p) == 0 {
-		return "(no equilibrium)"
-	}
-	return strings.Join(p, " / ")
+	d.list(textItems(items)...)
 }
 
 func currentSection(d *document, r *AssessJSON, unit string) {
@@ -362,11 +342,7 @@ func screeningDocSection(d *document, r *AssessJSON) {
 	}
 	d.h2("Which inputs drive each verdict")
 	d.pf("Screening over the first %d successful draws: the split distance D is the Kolmogorov–Smirnov distance between an input's values in the draws where the equilibrium attracts and where it does not (Spear & Hornberger 1980); ρ is Spearman's rank correlation with the equilibrium's position and PRCC the partial rank correlation (Iman & Conover 1980).", s.Kept)
-	var items [][]span
-	for _, line := range screenReading(s, r.Equilibria) {
-		items = append(items, []span{tx(line)})
-	}
-	d.list(items...)
+	d.list(textItems(screenReading(s, r.Equilibria))...)
 	hasCurrent := len(s.Equilibria) > 0 && len(s.Equilibria[0].Parameters) > 0 && s.Equilibria[0].Parameters[0].SplitCurrent != nil
 	head := []string{"", "input", "attracts: split D"}
 	right := []bool{false, false, true}
@@ -530,25 +506,13 @@ func requirementSection(d *document, reqs []RequirementJSON) {
 }
 
 func warningSection(d *document, r *AssessJSON) {
-	d.h2("Warnings and failures")
-	var items [][]span
-	for _, w := range r.Warnings {
-		items = append(items, []span{tx("Warning: " + w)})
-	}
+	lines := affixed("Warning: ", "", r.Warnings)
 	if r.Nominal != nil {
-		for _, w := range r.Nominal.Warnings {
-			items = append(items, []span{tx("At nominal values: " + w)})
-		}
+		lines = append(lines, affixed("At nominal values: ", "", r.Nominal.Warnings)...)
 	}
-	for _, c := range r.Failures {
-		items = append(items, []span{tx(fmt.Sprintf("Failed draws: %d × %s (first: %s).", c.Draws, c.Reason, ints(c.First)))})
-	}
-	for _, c := range r.Faults {
-		items = append(items, []span{tx(fmt.Sprintf("Numeric trouble: %s with %s (first: %s).", plural(c.Draws, "draw", "draws"), c.Reason, ints(c.First)))})
-	}
-	if len(items) == 0 {
-		d.p(tx("The run raised no warning, and every draw was assessed without numeric trouble."))
-		return
-	}
-	d.list(items...)
+	lines = append(lines, affixed("", ".", countedLines(countedOf(r.Failures), countedOf(r.Faults), "draw", "draws", "first"))...)
+	troubleSection(d, "Warnings and failures", lines, noDrawTrouble)
 }
+
+// noDrawTrouble closes the warnings of a run of draws that raised none.
+const noDrawTrouble = "The run raised no warning, and every draw was assessed without numeric trouble."

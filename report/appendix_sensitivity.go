@@ -2,73 +2,43 @@ package report
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
-	"holdfast/assess"
+	"holdfast/assess/sensitivity"
 )
 
 // sensitivityDocument lays out the report of a sensitivity result.
 func sensitivityDocument(r *SensitivityJSON) *document {
-	d := &document{title: r.Title}
-	if d.title == "" {
-		d.title = "Sensitivity ranking"
-	}
+	d := titledDocument(r.Title, "Sensitivity ranking")
 	unit := ""
 	if r.Model != nil {
 		unit = r.Model.State.Unit
 	}
 	d.p(tx(fmt.Sprintf("Sensitivity ranking by holdfast %s of scenario ", r.Version)), cd(r.Scenario),
 		tx(fmt.Sprintf(": which inputs drive %s (%s is %s at x* = %s at nominal values).",
-			outputPhraseJSON(r.Output, r.Target), r.Target, r.TargetClass, withUnit(g(r.TargetX), unit))))
+			outputPhrase(r.Output, r.Target), r.Target, r.TargetClass, withUnit(g(r.TargetX), unit))))
 	d.caution()
 	if len(r.Reading) > 0 {
 		d.h2("Reading")
-		var items [][]span
-		for _, s := range r.Reading {
-			items = append(items, []span{tx(s)})
-		}
-		d.list(items...)
+		d.list(textItems(r.Reading)...)
 	}
 	scenarioSection(d, &r.Envelope, r.Model)
 	inputsSection(d, r.Model)
 	sensitivityMethod(d, r)
 	rankingSection(d, r)
 	localSection(d, r)
-	d.h2("Notes and warnings")
-	var items [][]span
-	for _, n := range r.Notes {
-		items = append(items, []span{tx("Note: " + n)})
-	}
-	for _, w := range r.Warnings {
-		items = append(items, []span{tx("Warning: " + w)})
-	}
+	lines := append(affixed("Note: ", "", r.Notes), affixed("Warning: ", "", r.Warnings)...)
 	if r.FailedRuns > 0 && len(r.Failures) == 0 {
 		// A result file written before failures were listed by reason.
-		items = append(items, []span{tx(fmt.Sprintf("%s failed and were left out.", plural(r.FailedRuns, "model run", "model runs")))})
+		lines = append(lines, fmt.Sprintf("%s failed and were left out.", plural(r.FailedRuns, "model run", "model runs")))
 	}
-	for _, line := range runTroubleLines(countedOf(r.Failures), countedOf(r.Faults), r.FaultedDraws, r.DesignRuns, r.ScreeningRuns) {
-		items = append(items, []span{tx(line + ".")})
-	}
-	if len(items) == 0 {
-		d.p(tx("None: the run raised no warning, and every model run was assessed without numeric trouble."))
-	}
-	d.list(items...)
+	lines = append(lines, affixed("", ".", runTroubleLines(countedOf(r.Failures), countedOf(r.Faults), r.FaultedDraws, r.DesignRuns, r.ScreeningRuns))...)
+	troubleSection(d, "Notes and warnings", lines, "None: the run raised no warning, and every model run was assessed without numeric trouble.")
 	limitsSection(d, "A ranking says which inputs move the verdict under the stated distributions; an input ranked low may still matter if its distribution is too narrow.")
 	reproductionSection(d, &r.Envelope, r.ScenarioText, r.Model)
 	d.caution()
 	return d
-}
-
-func outputPhraseJSON(output, target string) string {
-	switch output {
-	case "attracting":
-		return "whether " + target + " attracts"
-	case "position":
-		return "the position x* of " + target
-	case "slope":
-		return "the slope f'(x*) at " + target
-	}
-	return "whether the state ends at " + target + " from the current state"
 }
 
 func sensitivityMethod(d *document, r *SensitivityJSON) {
@@ -84,31 +54,19 @@ func sensitivityMethod(d *document, r *SensitivityJSON) {
 			strings.Join(r.Correlated, ", "), r.ScreeningRuns)
 	}
 	d.pf("Rank correlation and partial rank correlation (Iman & Conover 1980) over %d draws; split distance: the Kolmogorov–Smirnov distance between each input's values where %s and where not (Spear & Hornberger 1980). Elasticities are those of %s at nominal values. Ranked by %s.",
-		r.Screening.Kept, verdictPhraseJSON(r.SplitOn, r.Target), elasticityPhraseJSON(r.ElasticityOf, r.Target), r.RankedBy)
+		r.Screening.Kept, verdictPhrase(r.SplitOn, r.Target), elasticityPhrase(r.ElasticityOf, r.Target), r.RankedBy)
 }
 
-func verdictPhraseJSON(o, target string) string {
-	if o == "current" {
-		return "the state ends at " + target + " from the current state"
-	}
-	return target + " attracts"
-}
-
-func elasticityPhraseJSON(of, target string) string {
-	if of == "x*" {
-		return "the position x* of " + target
-	}
-	return "the slope f'(x*) of " + target
-}
-
+// ciText is withCI for numbers read from a result file (null: "–", or
+// no interval).
 func ciText(v *float64, c [2]*float64) string {
 	if v == nil {
 		return "–"
 	}
-	if c[0] == nil || c[1] == nil || *v == 0 && *c[0] == 0 && *c[1] == 0 {
+	if c[0] == nil || c[1] == nil {
 		return f2(*v)
 	}
-	return fmt.Sprintf("%s (%s…%s)", f2(*v), f2(*c[0]), f2(*c[1]))
+	return withCI(*v, [2]float64{*c[0], *c[1]})
 }
 
 func rankingSection(d *document, r *SensitivityJSON) {
@@ -116,26 +74,9 @@ func rankingSection(d *document, r *SensitivityJSON) {
 	t := table{head: []string{"rank", "input", "first order", "total", "rank corr", "split D", "elasticity"},
 		right: []bool{true, false, true, true, true, true, true}}
 	for _, w := range r.Indices {
-		name := w.Parameter
-		if w.Fixed {
-			name += " (fixed)"
-		}
-		sd := "–"
-		switch {
-		case w.SplitDistance != nil && *w.SplitDistance == 0 && w.SplitP != nil && *w.SplitP == 1:
-			sd = "0"
-		case w.SplitDistance != nil:
-			p := "p –"
-			if w.SplitP != nil {
-				p = pval(*w.SplitP)
-			}
-			sd = fmt.Sprintf("%.2f (%s)", *w.SplitDistance, p)
-		}
-		el := "–"
-		if w.Elasticity != nil {
-			el = g3(*w.Elasticity)
-		}
-		t.rows = append(t.rows, []string{fmt.Sprint(w.Rank), name, ciText(w.FirstOrder, w.FirstOrderCI), ciText(w.Total, w.TotalCI), f2p(w.RankCorr), sd, el})
+		sd := split(sensitivity.Split{D: orNaN(w.SplitDistance), P: orNaN(w.SplitP)})
+		t.rows = append(t.rows, []string{fmt.Sprint(w.Rank), paramName(w.Parameter, w.Fixed), ciText(w.FirstOrder, w.FirstOrderCI), ciText(w.Total, w.TotalCI),
+			f2p(w.RankCorr), sd, g3p(w.Elasticity)})
 	}
 	d.table(t)
 	var bars []barItem
@@ -172,19 +113,17 @@ func localSection(d *document, r *SensitivityJSON) {
 	d.table(t)
 }
 
+// orNaN is *v, or NaN for null.
+func orNaN(v *float64) float64 {
+	if v == nil {
+		return math.NaN()
+	}
+	return *v
+}
+
 func g3p(v *float64) string {
 	if v == nil {
 		return "–"
 	}
 	return g3(*v)
-}
-
-// countedOf converts failure or fault lists read from a result file back
-// to the engine's form.
-func countedOf(cs []CountedJSON) []assess.Counted {
-	out := make([]assess.Counted, 0, len(cs))
-	for _, c := range cs {
-		out = append(out, assess.Counted{Reason: c.Reason, Draws: c.Draws, First: c.First})
-	}
-	return out
 }

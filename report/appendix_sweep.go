@@ -7,10 +7,7 @@ import (
 
 // sweepDocument lays out the report of a sweep result.
 func sweepDocument(r *SweepJSON) *document {
-	d := &document{title: r.Title}
-	if d.title == "" {
-		d.title = "Tipping-point sweep"
-	}
+	d := titledDocument(r.Title, "Tipping-point sweep")
 	su, du := "", ""
 	if m := r.Model; m != nil {
 		su = m.State.Unit
@@ -119,10 +116,8 @@ func sweepKeyFigures(d *document, r *SweepJSON, du string) {
 }
 
 func sweepMethod(d *document, r *SweepJSON) {
-	d.h2("Method")
 	s := r.Settings
-	if s == nil {
-		d.p(tx("The result file does not record the run's settings."))
+	if !methodHead(d, s != nil) {
 		return
 	}
 	d.pf("%d parameter sets were drawn by %s with seed %d, and in each the driver %s was swept %s from %s to %s. Draw i depends only on the seed and i, so the numbers do not depend on how many workers shared the run.",
@@ -269,11 +264,7 @@ func curveSection(d *document, r *SweepJSON, du string) {
 	for _, p := range r.Curve {
 		regime := "–"
 		if len(p.Regimes) > 0 {
-			pattern := strings.Join(p.Regimes[0].Pattern, " / ")
-			if pattern == "" {
-				pattern = "(no equilibrium)"
-			}
-			regime = pattern + " " + pc(p.Regimes[0].P) + "%"
+			regime = regimeShare(p.Regimes[0].Pattern, p.Regimes[0].P)
 		}
 		ok := n - p.FailedDraws
 		row := []string{g(p.Value), pctCI(p.PExists, p.PExistsCI, ok), pctCI(p.PAttracting, p.PAttractingCI, ok), regime, fmt.Sprint(p.FailedDraws)}
@@ -315,17 +306,7 @@ func curveSection(d *document, r *SweepJSON, du string) {
 }
 
 func sweepWarnings(d *document, r *SweepJSON) {
-	d.h2("Warnings and failures")
-	var items [][]span
-	for _, w := range r.Warnings {
-		items = append(items, []span{tx("Warning: " + w)})
-	}
-	for _, line := range sweepTroubleLines(countedOf(r.Failures), countedOf(r.Faults), r.FaultedDraws, r.Draws, max(len(r.Curve), 1)) {
-		items = append(items, []span{tx(line + ".")})
-	}
-	if len(items) == 0 {
-		d.p(tx("The run raised no warning, and every draw was assessed without numeric trouble."))
-		return
-	}
-	d.list(items...)
+	lines := affixed("Warning: ", "", r.Warnings)
+	lines = append(lines, affixed("", ".", sweepTroubleLines(countedOf(r.Failures), countedOf(r.Faults), r.FaultedDraws, r.Draws, max(len(r.Curve), 1)))...)
+	troubleSection(d, "Warnings and failures", lines, noDrawTrouble)
 }

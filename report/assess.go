@@ -191,13 +191,9 @@ func NewAssessJSON(version, scenario, title string, r *assess.Result) *AssessJSO
 		out.Convergence.TargetHalfWidth = nil
 	}
 	for _, t := range r.Tracked {
-		class := t.NominalClass.String()
-		if s := t.NominalSide.String(); s != "" {
-			class += "-" + s
-		}
 		e, a, s := probJSON(t.Exists), probJSON(t.Attracting), probJSON(t.Semistable)
 		out.Equilibria = append(out.Equilibria, TrackedJSON{
-			Label: t.Label, NominalX: t.NominalX, NominalClass: class,
+			Label: t.Label, NominalX: t.NominalX, NominalClass: className(t.NominalClass.String(), t.NominalSide.String()),
 			PExists: e.P, PExistsCI: e.CI,
 			PAttracting: a.P, PAttractingCI: a.CI,
 			PSemistable: s.P, PSemistableCI: s.CI,
@@ -282,38 +278,26 @@ func AssessTableCertified(w io.Writer, title, unit string, r *assess.Result, s *
 	if len(r.Tracked) == 0 {
 		fmt.Fprintf(w, "No equilibrium in the domain at nominal values.\n")
 	} else {
-		t := newTable(w)
-		t.Header("", "nominal x*", "nominal class", "exists", "attracting", "x* 5%…95%"+unitSuffix(unit), "median slope")
+		var rows [][]string
 		for _, e := range r.Tracked {
-			class := e.NominalClass.String()
-			if s := e.NominalSide.String(); s != "" {
-				class += " from " + s
-			}
 			rng := "–"
 			if e.X.N > 0 {
 				rng = fmt.Sprintf("%s … %s", g(e.X.Q[0]), g(e.X.Q[4]))
 			}
-			if err := t.Append([]string{e.Label, g(e.NominalX), class, pct(e.Exists), pct(e.Attracting), rng, g(e.Slope.Q[2])}); err != nil {
-				return err
-			}
+			rows = append(rows, []string{e.Label, g(e.NominalX), classFrom(e.NominalClass.String(), e.NominalSide.String()),
+				pct(e.Exists), pct(e.Attracting), rng, g(e.Slope.Q[2])})
 		}
-		if err := t.Render(); err != nil {
+		head := []string{"", "nominal x*", "nominal class", "exists", "attracting", "x* 5%…95%" + unitSuffix(unit), "median slope"}
+		if err := writeTable(w, head, rows); err != nil {
 			return err
 		}
 	}
 	fmt.Fprintf(w, "\nRegimes (classes of all equilibria, low to high):\n")
-	t := newTable(w)
-	t.Header("pattern", "share of draws")
+	var rows [][]string
 	for _, g := range r.Regimes {
-		pattern := strings.Join(g.Pattern, " / ")
-		if pattern == "" {
-			pattern = "(no equilibrium)"
-		}
-		if err := t.Append([]string{pattern, pct(g.P)}); err != nil {
-			return err
-		}
+		rows = append(rows, []string{regimeName(g.Pattern), pct(g.P)})
 	}
-	if err := t.Render(); err != nil {
+	if err := writeTable(w, []string{"pattern", "share of draws"}, rows); err != nil {
 		return err
 	}
 	if r.Untracked.Count > 0 {
@@ -321,14 +305,11 @@ func AssessTableCertified(w io.Writer, title, unit string, r *assess.Result, s *
 	}
 	if r.Outcomes != nil {
 		fmt.Fprintf(w, "\nFrom the current state %s%s the state ends at:\n", g(r.Nominal.Current.From), unitSuffix(unit))
-		t := newTable(w)
-		t.Header("destination", "share of draws")
+		var rows [][]string
 		for _, o := range r.Outcomes {
-			if err := t.Append([]string{o.Label, pct(o.P)}); err != nil {
-				return err
-			}
+			rows = append(rows, []string{o.Label, pct(o.P)})
 		}
-		if err := t.Render(); err != nil {
+		if err := writeTable(w, []string{"destination", "share of draws"}, rows); err != nil {
 			return err
 		}
 	}
@@ -340,12 +321,7 @@ func AssessTableCertified(w io.Writer, title, unit string, r *assess.Result, s *
 			return err
 		}
 	}
-	for _, c := range r.Failed {
-		fmt.Fprintf(w, "Failed draws: %d × %s (first: %s)\n", c.Draws, c.Reason, ints(c.First))
-	}
-	for _, c := range r.Faults {
-		fmt.Fprintf(w, "Numeric trouble: %d draws with %s (first: %s)\n", c.Draws, c.Reason, ints(c.First))
-	}
+	printLines(w, "", countedLines(r.Failed, r.Faults, "draw", "draws", "first"))
 	if c := r.Convergence; c.Target > 0 {
 		state := "reached"
 		if !c.Reached {
@@ -353,20 +329,10 @@ func AssessTableCertified(w io.Writer, title, unit string, r *assess.Result, s *
 		}
 		fmt.Fprintf(w, "Convergence: target half-width %g %s after %d batches; widest half-width %.4g\n", c.Target, state, c.Batches, c.MaxHalfWidth)
 	}
-	for _, msg := range r.Warnings {
-		fmt.Fprintf(w, "Warning: %s\n", msg)
-	}
+	printLines(w, "Warning: ", r.Warnings)
 	RequirementLines(w, outs, p)
 	fmt.Fprintf(w, "\n%s\n", Caution)
 	return nil
-}
-
-func ints(v []int) string {
-	s := make([]string, len(v))
-	for i, x := range v {
-		s[i] = strconv.Itoa(x)
-	}
-	return strings.Join(s, ", ")
 }
 
 // DrawsCSV streams per-draw records as CSV: the draw index, every
@@ -421,11 +387,7 @@ func (d *DrawsCSV) Write(block []assess.Draw) error {
 				continue
 			}
 			t := r.Tracked[k]
-			class := t.Class.String()
-			if s := t.Side.String(); s != "" {
-				class += "-" + s
-			}
-			d.row = append(d.row, "1", strconv.FormatFloat(t.X, 'g', -1, 64), class)
+			d.row = append(d.row, "1", strconv.FormatFloat(t.X, 'g', -1, 64), className(t.Class.String(), t.Side.String()))
 		}
 		classes := make([]string, len(r.Pattern))
 		for j, c := range r.Pattern {

@@ -110,18 +110,11 @@ func certificationLines(w io.Writer, c *CertificationJSON) error {
 			c.Unresolved, g(c.MaxWidth))
 	}
 	if len(c.CertifiedRegimes) > 0 {
-		t := newTable(w)
-		t.Header("regime over certified draws", "share of certified draws")
+		var rows [][]string
 		for _, r := range c.CertifiedRegimes {
-			p := strings.Join(r.Pattern, " / ")
-			if p == "" {
-				p = "(no equilibrium)"
-			}
-			if err := t.Append([]string{p, pctProb(ProbJSON{P: r.P, CI: r.CI, Count: r.Count})}); err != nil {
-				return err
-			}
+			rows = append(rows, []string{regimeName(r.Pattern), pctProb(ProbJSON{P: r.P, CI: r.CI, Count: r.Count})})
 		}
-		if err := t.Render(); err != nil {
+		if err := writeTable(w, []string{"regime over certified draws", "share of certified draws"}, rows); err != nil {
 			return err
 		}
 	}

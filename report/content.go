@@ -186,6 +186,16 @@ func inputsSection(d *document, m *ModelJSON) {
 	d.pf("Rank (Spearman) correlations between inputs: %s; imposed on the draws by the distribution-free method of Iman & Conover (1982).", strings.Join(cs, "; "))
 }
 
+// methodHead starts the Method section; without recorded settings it
+// says so and reports false (the section ends there).
+func methodHead(d *document, recorded bool) bool {
+	d.h2("Method")
+	if !recorded {
+		d.p(tx("The result file does not record the run's settings."))
+	}
+	return recorded
+}
+
 // limitsSection states what the results do not say.
 func limitsSection(d *document, extra ...string) {
 	d.h2("What these results do not say")

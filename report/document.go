@@ -51,6 +51,17 @@ type table struct {
 	rows  [][]string
 }
 
+// rowCell is column i of row r, empty where the row is short.
+func rowCell(r []string, i int) string {
+	if i < len(r) {
+		return r[i]
+	}
+	return ""
+}
+
+// isRight reports whether column i is right-aligned.
+func (t table) isRight(i int) bool { return i < len(t.right) && t.right[i] }
+
 type codeBlock struct {
 	lang, text string
 }
@@ -150,7 +161,7 @@ func mdTable(b *strings.Builder, t table) {
 	}
 	b.WriteString("\n|")
 	for i := range t.head {
-		if i < len(t.right) && t.right[i] {
+		if t.isRight(i) {
 			b.WriteString(" ---: |")
 		} else {
 			b.WriteString(" --- |")
@@ -160,11 +171,7 @@ func mdTable(b *strings.Builder, t table) {
 	for _, r := range t.rows {
 		b.WriteString("|")
 		for i := range t.head {
-			v := ""
-			if i < len(r) {
-				v = r[i]
-			}
-			b.WriteString(" " + cell(v) + " |")
+			b.WriteString(" " + cell(rowCell(r, i)) + " |")
 		}
 		b.WriteString("\n")
 	}
@@ -289,7 +296,7 @@ func htmlSpans(spans []span) string {
 
 func htmlTable(b *strings.Builder, t table) {
 	cls := func(i int) string {
-		if i < len(t.right) && t.right[i] {
+		if t.isRight(i) {
 			return ` class="num"`
 		}
 		return ""
@@ -302,11 +309,7 @@ func htmlTable(b *strings.Builder, t table) {
 	for _, r := range t.rows {
 		b.WriteString("<tr>")
 		for i := range t.head {
-			v := ""
-			if i < len(r) {
-				v = r[i]
-			}
-			b.WriteString("<td" + cls(i) + ">" + html.EscapeString(v) + "</td>")
+			b.WriteString("<td" + cls(i) + ">" + html.EscapeString(rowCell(r, i)) + "</td>")
 		}
 		b.WriteString("</tr>\n")
 	}
@@ -347,3 +350,12 @@ tbody tr:nth-child(even){background:none}
 @page{margin:16mm 15mm}
 }
 `
+
+// titledDocument starts a document with the given title, or fallback when
+// the title is empty.
+func titledDocument(title, fallback string) *document {
+	if title == "" {
+		title = fallback
+	}
+	return &document{title: title}
+}

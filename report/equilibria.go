@@ -147,33 +147,23 @@ func EquilibriaTable(w io.Writer, title, unit string, s *assess.Snapshot) error 
 	if len(s.Equilibria) == 0 {
 		fmt.Fprintf(w, "No equilibrium in the domain.\n")
 	} else {
-		t := newTable(w)
-		t.Header("", "x*", "class", "order", "slope f'(x*)", "return time", "basin", "barrier below", "barrier above")
+		var rows [][]string
 		for _, e := range s.Equilibria {
-			class := e.Class.String()
-			if e.AttractsFrom != steady.None {
-				class += " (attracts from " + e.AttractsFrom.String() + ")"
-			}
-			if err := t.Append([]string{
-				e.Label, g(e.X), class, fmt.Sprint(e.Order), g(e.Slope), g(e.ReturnTime),
+			rows = append(rows, []string{
+				e.Label, g(e.X), attractsClass(e.Class.String(), e.AttractsFrom.String()), fmt.Sprint(e.Order), g(e.Slope), g(e.ReturnTime),
 				fmt.Sprintf("[%s, %s]", g(e.Basin[0]), g(e.Basin[1])), g(e.Barrier[0]), g(e.Barrier[1]),
-			}); err != nil {
-				return err
-			}
+			})
 		}
-		if err := t.Render(); err != nil {
+		head := []string{"", "x*", "class", "order", "slope f'(x*)", "return time", "basin", "barrier below", "barrier above"}
+		if err := writeTable(w, head, rows); err != nil {
 			return err
 		}
 	}
 	if c := s.Current; c != nil {
 		fmt.Fprintf(w, "\nFrom the current state %s: %s\n", g(c.From), describeTransit(c))
 	}
-	for _, f := range s.Faults {
-		fmt.Fprintf(w, "Undefined: %s\n", f)
-	}
-	for _, msg := range s.Warnings {
-		fmt.Fprintf(w, "Warning: %s\n", msg)
-	}
+	printLines(w, "Undefined: ", s.Faults)
+	printLines(w, "Warning: ", s.Warnings)
 	fmt.Fprintf(w, "\n%s\n", Caution)
 	return nil
 }

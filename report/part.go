@@ -87,19 +87,7 @@ func (p *PartJSON) Parse() (*scenarios.Scenario, error) {
 // ReadPart reads and checks a part or checkpoint file (want is KindPart
 // or KindCheckpoint). Every error is a *ResultError naming the file.
 func ReadPart(path, want string) (*PartJSON, error) {
-	data, err := readFile(path, kindName(want))
-	if err != nil {
-		return nil, err
-	}
-	p, err := LoadPart(data, want)
-	if err != nil {
-		var re *ResultError
-		if errors.As(err, &re) {
-			re.File = path
-		}
-		return nil, err
-	}
-	return p, nil
+	return readAndLoad(path, kindName(want), func(data []byte) (*PartJSON, error) { return LoadPart(data, want) })
 }
 
 // LoadPart decodes and checks a part or checkpoint file (see ReadPart).

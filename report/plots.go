@@ -224,6 +224,20 @@ func bandPolygon(x, lo, hi []float64, col color.Color) (*plotter.Polygon, error)
 	return pg, nil
 }
 
+// bandLine adds to c the band between lo and hi over x in the colour
+// band (when x has more than one point), and returns the line of y over x
+// in the colour line for the caller to add.
+func (c *chart) bandLine(x, y, lo, hi []float64, band, line color.Color, width float64) (*plotter.Line, error) {
+	if len(x) > 1 {
+		pg, err := bandPolygon(x, lo, hi, band)
+		if err != nil {
+			return nil, err
+		}
+		c.p.Add(pg)
+	}
+	return lineOf(xyOf(x, y), line, width)
+}
+
 // swatch is a legend thumbnail: a filled block.
 type swatch struct{ col color.Color }
 
@@ -635,14 +649,7 @@ func convergenceChart(ss []series) (*chart, error) {
 		if len(xs) == 0 {
 			continue
 		}
-		if len(xs) > 1 {
-			pg, err := bandPolygon(xs, lo, hi, translucent(col, 0x38))
-			if err != nil {
-				return nil, err
-			}
-			c.p.Add(pg)
-		}
-		l, err := lineOf(xyOf(xs, est), col, 1.5)
+		l, err := c.bandLine(xs, est, lo, hi, translucent(col, 0x38), col, 1.5)
 		if err != nil {
 			return nil, err
 		}
@@ -668,14 +675,7 @@ func curveChart(title, xLabel, label string, x, p, lo, hi []float64) (*chart, er
 	if len(x) == 0 || len(p) != len(x) || len(lo) != len(x) || len(hi) != len(x) {
 		return c, nil
 	}
-	if len(x) > 1 {
-		pg, err := bandPolygon(x, lo, hi, colOuter)
-		if err != nil {
-			return nil, err
-		}
-		c.p.Add(pg)
-	}
-	l, err := lineOf(xyOf(x, p), colNominal, 1.8)
+	l, err := c.bandLine(x, p, lo, hi, colOuter, colNominal, 1.8)
 	if err != nil {
 		return nil, err
 	}

@@ -274,11 +274,18 @@ const MaxResultBytes = 256 << 20
 
 // ReadResult reads and checks a result file (see LoadResult).
 func ReadResult(path string) (*Saved, error) {
-	data, err := readFile(path, "result")
+	return readAndLoad(path, "result", LoadResult)
+}
+
+// readAndLoad reads the file (what names its kind in errors, see
+// readFile) and decodes it with load; a *ResultError from load is given
+// the file's name.
+func readAndLoad[T any](path, what string, load func([]byte) (*T, error)) (*T, error) {
+	data, err := readFile(path, what)
 	if err != nil {
 		return nil, err
 	}
-	s, err := LoadResult(data)
+	v, err := load(data)
 	if err != nil {
 		var re *ResultError
 		if errors.As(err, &re) {
@@ -286,7 +293,7 @@ func ReadResult(path string) (*Saved, error) {
 		}
 		return nil, err
 	}
-	return s, nil
+	return v, nil
 }
 
 // readFile reads a file of at most MaxResultBytes; errors are
@@ -343,22 +350,13 @@ func LoadResult(data []byte) (*Saved, error) {
 	switch probe.Kind {
 	case KindAssess:
 		s.Assess = &AssessJSON{}
-		err = json.Unmarshal(trimmed, s.Assess)
-		if err == nil {
-			err = s.Assess.check()
-		}
+		err = decodeChecked(trimmed, s.Assess)
 	case KindSensitivity:
 		s.Sensitivity = &SensitivityJSON{}
-		err = json.Unmarshal(trimmed, s.Sensitivity)
-		if err == nil {
-			err = s.Sensitivity.check()
-		}
+		err = decodeChecked(trimmed, s.Sensitivity)
 	case KindSweep:
 		s.Sweep = &SweepJSON{}
-		err = json.Unmarshal(trimmed, s.Sweep)
-		if err == nil {
-			err = s.Sweep.check()
-		}
+		err = decodeChecked(trimmed, s.Sweep)
 	}
 	if err != nil {
 		var re *ResultError
@@ -368,6 +366,14 @@ func LoadResult(data []byte) (*Saved, error) {
 		return nil, bad("malformed %s result: %v", probe.Kind, err)
 	}
 	return s, nil
+}
+
+// decodeChecked decodes a result's JSON into v and checks what it holds.
+func decodeChecked(data []byte, v interface{ check() error }) error {
+	if err := json.Unmarshal(data, v); err != nil {
+		return err
+	}
+	return v.check()
 }
 
 // resultProbe is the head of a result file.

@@ -267,16 +267,18 @@ func pval(p float64) string {
 	return fmt.Sprintf("p=%.2g", p)
 }
 
-func outputPhrase(r *sensitivity.Result) string {
-	switch r.Output {
-	case sensitivity.Attracting:
-		return "whether " + r.Target + " attracts"
-	case sensitivity.Position:
-		return "the position x* of " + r.Target
-	case sensitivity.Slope:
-		return "the slope f'(x*) at " + r.Target
+// outputPhrase words the output analysed (a sensitivity.Output's name)
+// of the target equilibrium.
+func outputPhrase(output, target string) string {
+	switch output {
+	case sensitivity.Attracting.String():
+		return "whether " + target + " attracts"
+	case sensitivity.Position.String():
+		return "the position x* of " + target
+	case sensitivity.Slope.String():
+		return "the slope f'(x*) at " + target
 	}
-	return "whether the state ends at " + r.Target + " from the current state"
+	return "whether the state ends at " + target + " from the current state"
 }
 
 // SensitivityTable writes the ranking as a terminal table: one row per
@@ -288,7 +290,7 @@ func SensitivityTable(w io.Writer, title, unit string, r *sensitivity.Result) er
 		fmt.Fprintf(w, "%s\n", title)
 	}
 	fmt.Fprintf(w, "Sensitivity of %s (output %s; %s is %s at x* = %s%s at nominal values).\n",
-		outputPhrase(r), r.Output, r.Target, r.TargetClass, g(r.TargetX), unitSuffix(unit))
+		outputPhrase(r.Output.String(), r.Target), r.Output, r.Target, r.TargetClass, g(r.TargetX), unitSuffix(unit))
 	used := 0
 	if r.Indices != nil {
 		used = r.Indices.Rows
@@ -300,53 +302,35 @@ func SensitivityTable(w io.Writer, title, unit string, r *sensitivity.Result) er
 		screen = r.Screening.Kept
 	}
 	fmt.Fprintf(w, "Indices: first order (Saltelli 2010), total (Jansen 1999), 95%% bootstrap intervals. Rank correlation over %d draws; split D: Kolmogorov–Smirnov distance between each input's values where %s and where not (Spear & Hornberger 1980). Elasticity: of %s at nominal values.\n",
-		screen, verdictPhrase(r.SplitOn, r.Target), elasticityPhrase(r))
+		screen, verdictPhrase(r.SplitOn.String(), r.Target), elasticityPhrase(r.ElasticityOf, r.Target))
 	fmt.Fprintf(w, "Ranked by %s.\n\n", r.RankedBy)
 	bars := SensitivityBars(r)
-	t := newTable(w)
-	t.Header("rank", "input", "first order", "total", "rank corr", "split D", "elasticity", r.RankedBy)
+	var rows [][]string
 	for i, row := range r.Rows {
-		name := row.Parameter
-		if row.Fixed {
-			name += " (fixed)"
-		}
-		if err := t.Append([]string{
-			fmt.Sprint(row.Rank), name, withCI(row.First, row.FirstCI), withCI(row.Total, row.TotalCI),
+		rows = append(rows, []string{
+			fmt.Sprint(row.Rank), paramName(row.Parameter, row.Fixed), withCI(row.First, row.FirstCI), withCI(row.Total, row.TotalCI),
 			f2(row.RankCorr), split(row.Split), g3(row.Elasticity), bar(bars.Bars[i].Value),
-		}); err != nil {
-			return err
-		}
+		})
 	}
-	if err := t.Render(); err != nil {
+	if err := writeTable(w, []string{"rank", "input", "first order", "total", "rank corr", "split D", "elasticity", r.RankedBy}, rows); err != nil {
 		return err
 	}
 	if len(r.Reading) > 0 {
 		fmt.Fprintf(w, "\nReading:\n")
-		for _, s := range r.Reading {
-			fmt.Fprintf(w, "  %s\n", s)
-		}
+		printLines(w, "  ", r.Reading)
 	}
-	for _, n := range r.Notes {
-		fmt.Fprintf(w, "Note: %s\n", n)
-	}
-	for _, msg := range r.Warnings {
-		fmt.Fprintf(w, "Warning: %s\n", msg)
-	}
-	for _, line := range runTroubleLines(r.Failed, r.Faults, r.Faulted, r.Runs, r.ScreenRuns) {
-		fmt.Fprintf(w, "%s\n", line)
-	}
+	printLines(w, "Note: ", r.Notes)
+	printLines(w, "Warning: ", r.Warnings)
+	printLines(w, "", runTroubleLines(r.Failed, r.Faults, r.Faulted, r.Runs, r.ScreenRuns))
 	if len(r.Local) > 0 {
 		fmt.Fprintf(w, "\nLocal view at nominal values (∂x*/∂θ = −(∂f/∂θ)/(∂f/∂x); elasticity = relative change per relative change of θ):\n")
-		t := newTable(w)
-		t.Header("", "input", "∂x*/∂θ", "elasticity of x*", "d f'(x*)/dθ", "elasticity of f'(x*)")
+		var rows [][]string
 		for _, e := range r.Local {
 			for _, p := range e.Params {
-				if err := t.Append([]string{e.Label, p.Parameter, g3(p.DX), g3(p.XElasticity), g3(p.DSlope), g3(p.SlopeElasticity)}); err != nil {
-					return err
-				}
+				rows = append(rows, []string{e.Label, p.Parameter, g3(p.DX), g3(p.XElasticity), g3(p.DSlope), g3(p.SlopeElasticity)})
 			}
 		}
-		if err := t.Render(); err != nil {
+		if err := writeTable(w, []string{"", "input", "∂x*/∂θ", "elasticity of x*", "d f'(x*)/dθ", "elasticity of f'(x*)"}, rows); err != nil {
 			return err
 		}
 	}
@@ -358,13 +342,7 @@ func SensitivityTable(w io.Writer, title, unit string, r *sensitivity.Result) er
 // a sensitivity run by reason with their first run indices, the number
 // of runs with faults, and (with a screening run) what the indices are.
 func runTroubleLines(failed, faults []assess.Counted, faulted int64, runs, screenRuns int) []string {
-	var out []string
-	for _, c := range failed {
-		out = append(out, fmt.Sprintf("Failed model runs: %d × %s (first runs: %s)", c.Draws, c.Reason, ints(c.First)))
-	}
-	for _, c := range faults {
-		out = append(out, fmt.Sprintf("Numeric trouble: %s with %s (first runs: %s)", plural(c.Draws, "model run", "model runs"), c.Reason, ints(c.First)))
-	}
+	out := countedLines(failed, faults, "model run", "model runs", "first runs")
 	if faulted > 0 {
 		out = append(out, fmt.Sprintf("Model runs with numeric trouble (a pole or an undefined stretch of the rate law): %d of %d", faulted, runs+screenRuns))
 	}
@@ -374,15 +352,19 @@ func runTroubleLines(failed, faults []assess.Counted, faulted int64, runs, scree
 	return out
 }
 
-func elasticityPhrase(r *sensitivity.Result) string {
-	if r.ElasticityOf == "x*" {
-		return "the position x* of " + r.Target
+// elasticityPhrase words what the elasticities are of ("x*" or "slope")
+// for the target equilibrium.
+func elasticityPhrase(of, target string) string {
+	if of == "x*" {
+		return "the position x* of " + target
 	}
-	return "the slope f'(x*) of " + r.Target
+	return "the slope f'(x*) of " + target
 }
 
-func verdictPhrase(o sensitivity.Output, target string) string {
-	if o == sensitivity.Current {
+// verdictPhrase words the verdict the split test is on (a
+// sensitivity.Output's name) for the target equilibrium.
+func verdictPhrase(splitOn, target string) string {
+	if splitOn == sensitivity.Current.String() {
 		return "the state ends at " + target + " from the current state"
 	}
 	return target + " attracts"
@@ -482,19 +464,18 @@ func screeningSection(w io.Writer, s *sensitivity.Screening) error {
 	}
 	hasCurrent := s.Equilibria[0].Outputs[sensitivity.Current] != nil
 	fmt.Fprintf(w, "\nWhich inputs drive each verdict (screening over %d draws): split D is the Kolmogorov–Smirnov distance between an input's values where the verdict holds and where not (Spear & Hornberger 1980); ρ is Spearman's rank correlation, PRCC the partial rank correlation.\n", s.Kept)
-	t := newTable(w)
-	head := []any{"", "input", "attracts: split D"}
+	head := []string{"", "input", "attracts: split D"}
 	if hasCurrent {
 		head = append(head, "ends here from current: split D")
 	}
 	head = append(head, "ρ with x*", "PRCC with x*", "ρ with slope")
-	t.Header(head...)
 	var fixed []string
 	for p, name := range s.Names {
 		if s.Fixed[p] {
 			fixed = append(fixed, name)
 		}
 	}
+	var rows [][]string
 	for _, e := range s.Equilibria {
 		for p, name := range s.Names {
 			if s.Fixed[p] {
@@ -506,12 +487,10 @@ func screeningSection(w io.Writer, s *sensitivity.Screening) error {
 			}
 			pos, sl := e.Outputs[sensitivity.Position], e.Outputs[sensitivity.Slope]
 			row = append(row, f2(pos.Spearman[p]), f2(pos.PRCC[p]), f2(sl.Spearman[p]))
-			if err := t.Append(row); err != nil {
-				return err
-			}
+			rows = append(rows, row)
 		}
 	}
-	if err := t.Render(); err != nil {
+	if err := writeTable(w, head, rows); err != nil {
 		return err
 	}
 	if len(fixed) > 0 {

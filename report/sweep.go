@@ -249,22 +249,11 @@ func NewSweepJSON(version, scenario, title string, r *tipping.Result) *SweepJSON
 		e, at := probJSON(p.Exists), probJSON(p.Attracting)
 		cp := CurvePointJSON{
 			Value: p.Value, PExists: e.P, PExistsCI: e.CI, PAttracting: at.P, PAttractingCI: at.CI,
-			Regimes: []RegimeJSON{}, FailedDraws: p.Failed, FaultedDraws: p.Faulted, PathDisagree: p.Disagree,
-		}
-		for _, g := range p.Regimes {
-			pj := probJSON(g.P)
-			cp.Regimes = append(cp.Regimes, RegimeJSON{Pattern: g.Pattern, P: pj.P, CI: pj.CI, Count: pj.Count})
+			Regimes: regimesJSON(p.Regimes), FailedDraws: p.Failed, FaultedDraws: p.Faulted, PathDisagree: p.Disagree,
 		}
 		out.Curve = append(out.Curve, cp)
 	}
 	return out
-}
-
-func className(class, side string) string {
-	if side != "" {
-		return class + "-" + side
-	}
-	return class
 }
 
 // sweepValue formats a driver value read off the critical values.
@@ -288,12 +277,9 @@ func SweepTable(w io.Writer, title, stateUnit, driverUnit string, r *tipping.Res
 	}
 	c := &r.Critical
 	du := unitSuffix(driverUnit)
-	nomClass := r.Nominal.Class.String()
-	if s := r.Nominal.AttractsFrom.String(); s != "" {
-		nomClass += " from " + s
-	}
 	fmt.Fprintf(w, "Sweep of %s from %s to %s%s, tracking %s (%s at nominal values, x* = %s%s).\n",
-		r.Driver, g(r.From), g(r.To), du, r.Track, nomClass, g(r.Nominal.X), unitSuffix(stateUnit))
+		r.Driver, g(r.From), g(r.To), du, r.Track, classFrom(r.Nominal.Class.String(), r.Nominal.AttractsFrom.String()),
+		g(r.Nominal.X), unitSuffix(stateUnit))
 	fmt.Fprintf(w, "%d draws (plan %s, seed %d); %d assessed, %d failed. Intervals are 95%%.\n\n",
 		r.Draws, r.Plan, r.Seed, c.N, c.Count[tipping.Failed])
 
@@ -309,16 +295,11 @@ func SweepTable(w io.Writer, title, stateUnit, driverUnit string, r *tipping.Res
 	}
 	fmt.Fprintf(w, "  %s\n", strings.Join(kinds, "; "))
 	fmt.Fprintf(w, "  no tipping in range: %s; already lost at %s: %s\n", pct(c.WithoutTipping), g(r.From), pct(c.LostAtStart))
-	t := newTable(w)
-	t.Header("level along the sweep", "5%", "25%", "50%", "75%", "95%")
 	row := []string{r.Driver + du}
 	for _, v := range c.Quantiles {
 		row = append(row, sweepValue(v, r))
 	}
-	if err := t.Append(row); err != nil {
-		return err
-	}
-	if err := t.Render(); err != nil {
+	if err := writeTable(w, []string{"level along the sweep", "5%", "25%", "50%", "75%", "95%"}, [][]string{row}); err != nil {
 		return err
 	}
 
@@ -329,20 +310,13 @@ func SweepTable(w io.Writer, title, stateUnit, driverUnit string, r *tipping.Res
 
 	if h := &r.Hysteresis; h.N > 0 {
 		fmt.Fprintf(w, "\nHysteresis (%d draws in which an attracting %s folds):\n", h.N, r.Track)
-		t := newTable(w)
-		t.Header("after the fold", "share of those draws")
 		rows := [][]string{
 			{"return fold inside the allowed values (reversible)", pct(h.Reversible)},
 			{"return fold outside the allowed values (irreversible)", pct(h.Irreversible)},
 			{"the state leaves the domain", pct(h.Escapes)},
 			{"unresolved", pct(h.Unresolved)},
 		}
-		for _, row := range rows {
-			if err := t.Append(row); err != nil {
-				return err
-			}
-		}
-		if err := t.Render(); err != nil {
+		if err := writeTable(w, []string{"after the fold", "share of those draws"}, rows); err != nil {
 			return err
 		}
 		fmt.Fprintf(w, "  allowed values of %s: [%s, %s]\n", r.Driver, g(r.Allowed[0]), g(r.Allowed[1]))
@@ -358,30 +332,23 @@ func SweepTable(w io.Writer, title, stateUnit, driverUnit string, r *tipping.Res
 		for _, p := range r.Curve {
 			faulted = faulted || p.Faulted > 0
 		}
-		t := newTable(w)
-		head := []any{r.Driver + du, r.Track + " exists", r.Track + " attracting", "most common regime"}
+		head := []string{r.Driver + du, r.Track + " exists", r.Track + " attracting", "most common regime"}
 		if faulted {
 			head = append(head, "numeric trouble")
 		}
-		t.Header(head...)
+		var rows [][]string
 		for _, p := range r.Curve {
 			regime := "–"
 			if len(p.Regimes) > 0 {
-				pattern := strings.Join(p.Regimes[0].Pattern, " / ")
-				if pattern == "" {
-					pattern = "(no equilibrium)"
-				}
-				regime = pattern + " " + pc(p.Regimes[0].P.P) + "%"
+				regime = regimeShare(p.Regimes[0].Pattern, p.Regimes[0].P.P)
 			}
 			row := []string{g(p.Value), pct(p.Exists), pct(p.Attracting), regime}
 			if faulted {
 				row = append(row, fmt.Sprintf("%d draws", p.Faulted))
 			}
-			if err := t.Append(row); err != nil {
-				return err
-			}
+			rows = append(rows, row)
 		}
-		if err := t.Render(); err != nil {
+		if err := writeTable(w, head, rows); err != nil {
 			return err
 		}
 		var most int64
@@ -393,12 +360,8 @@ func SweepTable(w io.Writer, title, stateUnit, driverUnit string, r *tipping.Res
 				r.Track, r.Driver, most, r.Draws)
 		}
 	}
-	for _, line := range sweepTroubleLines(r.Failed, r.Faults, r.Faulted, r.Draws, r.Runs) {
-		fmt.Fprintf(w, "%s\n", line)
-	}
-	for _, msg := range r.Warnings {
-		fmt.Fprintf(w, "Warning: %s\n", msg)
-	}
+	printLines(w, "", sweepTroubleLines(r.Failed, r.Faults, r.Faulted, r.Draws, r.Runs))
+	printLines(w, "Warning: ", r.Warnings)
 	fmt.Fprintf(w, "\n%s\n", Caution)
 	return nil
 }
@@ -407,13 +370,7 @@ func SweepTable(w io.Writer, title, stateUnit, driverUnit string, r *tipping.Res
 // reason with their first draw indices, and the number of draws with
 // faults over the runs engine runs of draws each.
 func sweepTroubleLines(failed, faults []assess.Counted, faulted int64, draws, runs int) []string {
-	var out []string
-	for _, c := range failed {
-		out = append(out, fmt.Sprintf("Failed draws: %d × %s (first: %s)", c.Draws, c.Reason, ints(c.First)))
-	}
-	for _, c := range faults {
-		out = append(out, fmt.Sprintf("Numeric trouble: %s with %s (first: %s)", plural(c.Draws, "draw", "draws"), c.Reason, ints(c.First)))
-	}
+	out := countedLines(failed, faults, "draw", "draws", "first")
 	if faulted > 0 {
 		if runs <= 1 {
 			out = append(out, fmt.Sprintf("Draws with numeric trouble (a pole or an undefined stretch of the rate law): %d of %d", faulted, draws))

@@ -17,3 +17,20 @@ func newTable(w io.Writer) *tablewriter.Table {
 		tablewriter.WithRowAlignment(tw.AlignLeft),
 	)
 }
+
+// writeTable writes a terminal table in that style: the header, then the
+// rows in order.
+func writeTable(w io.Writer, head []string, rows [][]string) error {
+	t := newTable(w)
+	h := make([]any, len(head))
+	for i, s := range head {
+		h[i] = s
+	}
+	t.Header(h...)
+	for _, r := range rows {
+		if err := t.Append(r); err != nil {
+			return err
+		}
+	}
+	return t.Render()
+}
