@@ -135,8 +135,8 @@ func Run(ctx context.Context, m *Model, opt Options) (*Result, error) {
 		if maxDraws == 0 {
 			maxDraws = min(100*opt.Draws, MaxDraws)
 		}
-		if maxDraws < opt.Draws {
-			return nil, fmt.Errorf("max-draws (%d) is below draws (%d)", maxDraws, opt.Draws)
+		if maxDraws < opt.Draws || maxDraws > MaxDraws {
+			return nil, fmt.Errorf("max-draws (%d) must be between draws (%d) and %d", maxDraws, opt.Draws, MaxDraws)
 		}
 	}
 	if opt.Shard.N > 1 {

@@ -107,6 +107,9 @@ result an uninterrupted run gives. The file is removed when the run ends.`,
 			if maxDrw != 0 && (halfWidth == 0 || maxDrw < draws) {
 				return badInput(errors.New("--max-draws needs --until-halfwidth and must be at least --draws"))
 			}
+			if maxDrw > assess.MaxDraws {
+				return badInput(fmt.Errorf("--max-draws must be at most %d, got %d", assess.MaxDraws, maxDrw))
+			}
 			sh, err := parseShard(shardSpec, os.Getenv)
 			if err != nil {
 				return badInput(fmt.Errorf("--shard: %w", err))

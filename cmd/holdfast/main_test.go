@@ -48,6 +48,7 @@ func TestBadFlags(t *testing.T) {
 		{[]string{"equilibria", "demo:lake", "--set", "s=NaN"}, "finite"},
 		{[]string{"nosuchcommand"}, "unknown command"},
 		{[]string{"demos", "nosuch"}, `unknown demo "nosuch"`},
+		{[]string{"assess", "demo:lake", "--until-halfwidth", "0.01", "--max-draws", "9000000000", "--out", out}, "--max-draws must be at most"},
 		{[]string{"demos", "lake", "fishery"}, "at most 1 arg"},
 		{[]string{"merge", "--format", "xml", "--out", out, "part.json"}, "--format"},
 		{[]string{"merge", "--quiet", "part.json"}, "part.json"},
