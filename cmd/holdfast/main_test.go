@@ -48,6 +48,7 @@ func TestBadFlags(t *testing.T) {
 		{[]string{"equilibria", "demo:lake", "--set", "s=NaN"}, "finite"},
 		{[]string{"nosuchcommand"}, "unknown command"},
 		{[]string{"demos", "nosuch"}, `unknown demo "nosuch"`},
+		{[]string{"assess", "demo:lake", "--workers", "20000", "--out", out}, "--workers must be 0 (all cores) to 1024"},
 		{[]string{"assess", "demo:lake", "--until-halfwidth", "0.01", "--max-draws", "9000000000", "--out", out}, "--max-draws must be at most"},
 		{[]string{"demos", "lake", "fishery"}, "at most 1 arg"},
 		{[]string{"merge", "--format", "xml", "--out", out, "part.json"}, "--format"},

@@ -81,8 +81,12 @@ func checkDraws(draws int) error {
 
 // checkWorkers validates a --workers value: 0 (all cores) or more.
 func checkWorkers(workers int) error {
-	if workers < 0 {
-		return badInput(fmt.Errorf("--workers must be 0 (all cores) or more, got %d", workers))
+	if workers < 0 || workers > maxWorkers {
+		return badInput(fmt.Errorf("--workers must be 0 (all cores) to %d, got %d", maxWorkers, workers))
 	}
 	return nil
 }
+
+// maxWorkers bounds --workers: each worker holds its own evaluator and
+// scratch (about 20 kB), and more workers than cores only cost memory.
+const maxWorkers = 1024
