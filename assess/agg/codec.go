@@ -1,8 +1,11 @@
 package agg
 
 import (
+	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
+	"io"
 	"math"
 	"strconv"
 	"strings"
@@ -76,6 +79,21 @@ func (s *Sketch) UnmarshalJSON(b []byte) error {
 			return fmt.Errorf("sketch: min and max missing or reversed")
 		}
 		s.min, s.max = *j.Min, *j.Max
+	}
+	return nil
+}
+
+// DecodeStrict decodes b into v as one JSON value, strictly, as stored
+// states are read: a field v does not have, or anything after the value,
+// is an error.
+func DecodeStrict(b []byte, v any) error {
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(v); err != nil {
+		return err
+	}
+	if _, err := dec.Token(); err != io.EOF {
+		return errors.New("data after the value")
 	}
 	return nil
 }

@@ -1,7 +1,6 @@
 package certify
 
 import (
-	"bytes"
 	"cmp"
 	"encoding/json"
 	"errors"
@@ -95,13 +94,8 @@ func (s *Summary) MarshalJSON() ([]byte, error) {
 // their counts say) and returns an error otherwise, leaving s unchanged.
 func (s *Summary) UnmarshalJSON(b []byte) error {
 	var j summaryJSON
-	dec := json.NewDecoder(bytes.NewReader(b))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&j); err != nil {
+	if err := agg.DecodeStrict(b, &j); err != nil {
 		return fmt.Errorf("certify: summary state: %w", err)
-	}
-	if dec.More() {
-		return errors.New("certify: summary state: data after the object")
 	}
 	t, err := j.summary()
 	if err != nil {

@@ -1,17 +1,16 @@
 package sensitivity
 
 import (
-	"bytes"
 	"encoding/base64"
 	"encoding/binary"
 	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"math"
 	"slices"
 
 	"holdfast/assess"
+	"holdfast/assess/agg"
 )
 
 // screenVersion is the version of the stored form of a Screen.
@@ -137,13 +136,8 @@ func decodeColumn(str string, n int) ([]float64, error) {
 // 0, 1 or NaN. On error the Screen is unchanged.
 func (s *Screen) UnmarshalJSON(b []byte) error {
 	var j screenJSON
-	dec := json.NewDecoder(bytes.NewReader(b))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&j); err != nil {
+	if err := agg.DecodeStrict(b, &j); err != nil {
 		return fmt.Errorf("screen state: %w", err)
-	}
-	if _, err := dec.Token(); err != io.EOF {
-		return errors.New("screen state: data after the state")
 	}
 	if j.Version != screenVersion {
 		return fmt.Errorf("screen state: version %d, want %d", j.Version, screenVersion)

@@ -1,11 +1,9 @@
 package summary
 
 import (
-	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"math"
 	"slices"
 
@@ -128,13 +126,8 @@ func (c *Collector) UnmarshalJSON(b []byte) error {
 		return errors.New("summary: collector not made by NewCollector")
 	}
 	var st stateJSON
-	dec := json.NewDecoder(bytes.NewReader(b))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&st); err != nil {
+	if err := agg.DecodeStrict(b, &st); err != nil {
 		return fmt.Errorf("summary: reading collector state: %w", err)
-	}
-	if _, err := dec.Token(); err != io.EOF {
-		return errors.New("summary: reading collector state: data after the state")
 	}
 	r, err := c.restore(&st)
 	if err != nil {
