@@ -176,6 +176,9 @@ result an uninterrupted run gives. The file is removed when the run ends.`,
 					if d := report.SameRun(here, saved); d != "" {
 						return badInput(fmt.Errorf("--resume: %s is the checkpoint of another run (%s)", checkpoint, d))
 					}
+					if saved.Run.Shard != settings.Shard {
+						return badInput(fmt.Errorf("--resume: %s is the checkpoint of shard %d/%d, not of shard %d/%d", checkpoint, saved.Run.Shard, saved.Run.Shards, settings.Shard, settings.Shards))
+					}
 					if opt.Resume, err = st.Restore(saved.State); err != nil {
 						return badInput(fmt.Errorf("--resume: %s: %w", checkpoint, err))
 					}

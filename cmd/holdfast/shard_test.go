@@ -331,6 +331,19 @@ func TestShardAndCheckpointBadFlags(t *testing.T) {
 	if _, err := os.Stat("r.json"); err == nil {
 		t.Error("a refused resume wrote its output")
 	}
+	// A checkpoint of one shard does not resume another.
+	runOK(t, "assess", "demo:lake", "--draws", "50", "--quiet", "--shard", "0/2", "--out", "p0.json")
+	raw0, err := os.ReadFile("p0.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile("state0.json", bytes.Replace(raw0, []byte(`"kind":"partial"`), []byte(`"kind":"checkpoint"`), 1), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	stderr = runBad(t, "assess", "demo:lake", "--draws", "50", "--quiet", "--shard", "1/2", "--checkpoint", "state0.json", "--resume", "--out", "p1.json")
+	if !strings.Contains(stderr, "checkpoint of shard 0/2, not of shard 1/2") {
+		t.Errorf("resume of another shard: %s", stderr)
+	}
 	// The same settings resume (the state covers every draw: nothing is
 	// left to run) and give the run's result.
 	if _, stderr, code := holdfast(t, "assess", "demo:lake", "--draws", "50", "--quiet", "--checkpoint", "state.json", "--resume", "--out", "r.json"); code != 0 {
