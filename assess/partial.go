@@ -53,7 +53,7 @@ func RunPartial(ctx context.Context, m *Model, opt Options) (*Partial, error) {
 	if err != nil {
 		return nil, err
 	}
-	n := shardSize(opt.Draws, sh)
+	n := sh.Size(opt.Draws)
 	done, conv, err := e.run(ctx, opt, sh, n, n)
 	if err != nil {
 		return nil, err
@@ -61,9 +61,13 @@ func RunPartial(ctx context.Context, m *Model, opt Options) (*Partial, error) {
 	return &Partial{Draws: done, Planned: done, Batches: conv.Batches, Shard: sh.K, Shards: sh.N, agg: e.total}, nil
 }
 
-// shardSize is the number of draws i < draws with i mod N = K.
-func shardSize(draws int, sh Shard) int {
-	if draws <= sh.K {
+// Size is the number of the run's draws i < draws in the shard, those
+// with i mod N = K (all of them for the zero Shard, the whole run).
+func (sh Shard) Size(draws int) int {
+	switch {
+	case sh.N <= 1:
+		return draws
+	case draws <= sh.K:
 		return 0
 	}
 	return (draws-sh.K-1)/sh.N + 1
@@ -130,7 +134,7 @@ func (mg *Merger) Add(p *Partial) error {
 	case !p.Complete():
 		return fmt.Errorf("merge: shard %d/%d is a checkpoint (%d of %d draws), not a finished shard", p.Shard, n, p.Draws, p.Planned)
 	}
-	if want := shardSize(mg.opt.Draws, Shard{p.Shard, n}); p.Draws != want {
+	if want := (Shard{p.Shard, n}).Size(mg.opt.Draws); p.Draws != want {
 		return fmt.Errorf("merge: shard %d/%d covers %d draws, want %d of %d", p.Shard, n, p.Draws, want, mg.opt.Draws)
 	}
 	if len(p.agg.tracked) != len(mg.nominal.Equilibria) {

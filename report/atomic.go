@@ -123,7 +123,16 @@ func WriteFileAtomic(path string, write func(w io.Writer) error, protect ...stri
 	return st.Commit()
 }
 
-// same reports whether two paths name the same existing file.
+// SamePath reports whether the paths a and b name the same file (by
+// identity when both exist, else by absolute path), as Stage and
+// WriteFileAtomic judge an output against the inputs they protect.
+func SamePath(a, b string) bool {
+	abs, err := filepath.Abs(a)
+	return err == nil && same(abs, b)
+}
+
+// same reports whether the absolute path a and the path b name the same
+// file.
 func same(a, b string) bool {
 	ai, err1 := os.Stat(a)
 	bi, err2 := os.Stat(b)

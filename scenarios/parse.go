@@ -648,14 +648,23 @@ func (p *parser) domain(n *yaml.Node, st *State) bool {
 	return true
 }
 
+// withinLimit reports whether count entries of a list or mapping are
+// within limit, and reports the error at n otherwise.
+func (p *parser) withinLimit(n *yaml.Node, path string, count, limit int, what string) bool {
+	if count <= limit {
+		return true
+	}
+	p.errorf(n, path, "%d %s, more than the limit of %d", count, what, limit)
+	return false
+}
+
 // defines decodes the define mapping.
 func (p *parser) defines(n *yaml.Node, s *Scenario) {
 	pairs, ok := p.mapping(n, "define", " of name: expression, such as {load: \"L*(1 + w)\"}")
 	if !ok {
 		return
 	}
-	if len(pairs) > MaxDefines {
-		p.errorf(n, "define", "%d named expressions, more than the limit of %d", len(pairs), MaxDefines)
+	if !p.withinLimit(n, "define", len(pairs), MaxDefines, "named expressions") {
 		return
 	}
 	for _, f := range pairs {
@@ -685,8 +694,7 @@ func (p *parser) params(n *yaml.Node, s *Scenario) {
 	if !ok {
 		return
 	}
-	if len(pairs) > MaxParams {
-		p.errorf(n, "parameters", "%d parameters, more than the limit of %d", len(pairs), MaxParams)
+	if !p.withinLimit(n, "parameters", len(pairs), MaxParams, "parameters") {
 		return
 	}
 	for _, f := range pairs {

@@ -206,7 +206,11 @@ result an uninterrupted run gives. The file is removed when the run ends.`,
 					return badInput(err)
 				}
 				defer csvOut.Abort()
-				csvw := report.NewDrawsCSV(csvOut, m.Names, trackedLabels(m))
+				labels, err := trackedLabels(m)
+				if err != nil {
+					return err
+				}
+				csvw := report.NewDrawsCSV(csvOut, m.Names, labels)
 				csvw.Certified = certifyOn
 				opt.Sink = csvw.Write
 			}
@@ -216,11 +220,7 @@ result an uninterrupted run gives. The file is removed when the run ends.`,
 			}
 			defer reports.Abort()
 			var endBar func()
-			planned := draws
-			if sharded {
-				planned = (draws + sh.N - 1) / sh.N
-			}
-			opt.Progress, endBar = progress(cmd.ErrOrStderr(), quiet, planned)
+			opt.Progress, endBar = progress(cmd.ErrOrStderr(), quiet, opt.Shard.Size(draws))
 
 			if sharded {
 				state, err := st.RunShard(cmd.Context(), opt)

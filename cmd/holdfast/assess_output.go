@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -85,29 +84,25 @@ func studyConfig(certify, checkSides bool) study.Config {
 }
 
 // trackedLabels are the labels of the model's nominal equilibria.
-func trackedLabels(m *assess.Model) []string {
+func trackedLabels(m *assess.Model) ([]string, error) {
 	nominal, err := m.Analyze(m.Nominal)
 	if err != nil {
-		return nil
+		return nil, failed(err)
 	}
 	var labels []string
 	for _, e := range nominal.Equilibria {
 		labels = append(labels, e.Label)
 	}
-	return labels
+	return labels, nil
 }
 
 // checkRequirements checks that every requirement names an equilibrium of
 // the scenario at nominal values (and a current state where it asks for
 // one).
 func checkRequirements(m *assess.Model, reqs []gate.Requirement) error {
-	nominal, err := m.Analyze(m.Nominal)
+	labels, err := trackedLabels(m)
 	if err != nil {
-		return failed(err)
-	}
-	var labels []string
-	for _, e := range nominal.Equilibria {
-		labels = append(labels, e.Label)
+		return err
 	}
 	if err := report.CheckRequirements(reqs, labels, m.Scenario.State.HasCurrent); err != nil {
 		return badInput(err)
@@ -207,7 +202,7 @@ const maxShards = 100_000
 // --resume continues), and a --resume without one.
 func checkCheckpointPath(path string, resume bool, inputs ...string) error {
 	for _, in := range inputs {
-		if in != "" && sameFile(path, in) {
+		if in != "" && report.SamePath(path, in) {
 			return badInput(fmt.Errorf("--checkpoint %s: the same file as an input or output", path))
 		}
 	}
@@ -219,19 +214,6 @@ func checkCheckpointPath(path string, resume bool, inputs ...string) error {
 		return badInput(fmt.Errorf("--checkpoint %s: the file exists (the checkpoint of an earlier run?): add --resume to continue that run, or remove the file", path))
 	}
 	return nil
-}
-
-// sameFile reports whether two paths name the same file (or the same
-// absolute path when either does not exist yet).
-func sameFile(a, b string) bool {
-	fa, errA := os.Stat(a)
-	fb, errB := os.Stat(b)
-	if errA == nil && errB == nil {
-		return os.SameFile(fa, fb)
-	}
-	aa, errA := filepath.Abs(a)
-	ab, errB := filepath.Abs(b)
-	return errA == nil && errB == nil && aa == ab
 }
 
 // removeCheckpoint removes the checkpoint of a finished run.
