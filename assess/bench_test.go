@@ -7,6 +7,7 @@ import (
 	"testing"
 	"time"
 
+	"holdfast/internal/nativeref"
 	"holdfast/sample"
 	"holdfast/scenarios"
 )
@@ -28,63 +29,11 @@ func lakeDF(P float64, th []float64) float64 {
 	return -s + r*q*mq*pq/P/((mq+pq)*(mq+pq))
 }
 
-// brent finds a root of f in [a, b] with f(a)·f(b) < 0 (Brent 1973,
-// Algorithms for Minimization without Derivatives, ch. 4, zero).
+// brent is the native reference's zero-finder (nativeref.Brent) without
+// its evaluation count.
 func brent(f func(float64) float64, a, b, fa, fb, tol float64) float64 {
-	c, fc := a, fa
-	d := b - a
-	e := d
-	for iter := 0; iter < 100; iter++ {
-		if fb*fc > 0 {
-			c, fc = a, fa
-			d = b - a
-			e = d
-		}
-		if math.Abs(fc) < math.Abs(fb) {
-			a, b, c = b, c, b
-			fa, fb, fc = fb, fc, fb
-		}
-		tol1 := 2*2.2e-16*math.Abs(b) + tol/2
-		xm := (c - b) / 2
-		if math.Abs(xm) <= tol1 || fb == 0 {
-			return b
-		}
-		if math.Abs(e) >= tol1 && math.Abs(fa) > math.Abs(fb) {
-			s := fb / fa
-			var p, q float64
-			if a == c {
-				p = 2 * xm * s
-				q = 1 - s
-			} else {
-				q0 := fa / fc
-				r := fb / fc
-				p = s * (2*xm*q0*(q0-r) - (b-a)*(r-1))
-				q = (q0 - 1) * (r - 1) * (s - 1)
-			}
-			if p > 0 {
-				q = -q
-			}
-			p = math.Abs(p)
-			if 2*p < math.Min(3*xm*q-math.Abs(tol1*q), math.Abs(e*q)) {
-				e = d
-				d = p / q
-			} else {
-				d = xm
-				e = d
-			}
-		} else {
-			d = xm
-			e = d
-		}
-		a, fa = b, fb
-		if math.Abs(d) > tol1 {
-			b += d
-		} else {
-			b += math.Copysign(tol1, xm)
-		}
-		fb = f(b)
-	}
-	return b
+	x, _ := nativeref.Brent(f, a, b, fa, fb, tol)
+	return x
 }
 
 // nativeLake is the hand-written reference of the Monte Carlo benchmark:

@@ -3,6 +3,8 @@ package steady
 import (
 	"math"
 	"testing"
+
+	"holdfast/internal/nativeref"
 )
 
 // Illustrative shallow-lake setting with three equilibria (a inside the
@@ -11,67 +13,6 @@ const benchA, benchB = 0.06, 0.52
 
 // nativeLake is the shallow-lake law written directly in Go.
 func nativeLake(p float64) float64 { return benchA - benchB*p + p*p/(1+p*p) }
-
-// brent is Brent's (1973) zero-finder ("zeroin") for a bracket [a, b] with
-// f(a) f(b) < 0: inverse quadratic interpolation, secant and bisection.
-func brent(f func(float64) float64, a, b, fa, fb, tol float64) (float64, int) {
-	evals := 0
-	c, fc := a, fa
-	d := b - a
-	e := d
-	for it := 0; it < 100; it++ {
-		if (fb > 0) == (fc > 0) {
-			c, fc = a, fa
-			d = b - a
-			e = d
-		}
-		if math.Abs(fc) < math.Abs(fb) {
-			a, b, c = b, c, b
-			fa, fb, fc = fb, fc, fb
-		}
-		tol1 := 2*0x1p-52*math.Abs(b) + 0.5*tol
-		xm := 0.5 * (c - b)
-		if math.Abs(xm) <= tol1 || fb == 0 {
-			return b, evals
-		}
-		if math.Abs(e) >= tol1 && math.Abs(fa) > math.Abs(fb) {
-			s := fb / fa
-			var p, q float64
-			if a == c {
-				p = 2 * xm * s
-				q = 1 - s
-			} else {
-				q = fa / fc
-				r := fb / fc
-				p = s * (2*xm*q*(q-r) - (b-a)*(r-1))
-				q = (q - 1) * (r - 1) * (s - 1)
-			}
-			if p > 0 {
-				q = -q
-			}
-			p = math.Abs(p)
-			if 2*p < math.Min(3*xm*q-math.Abs(tol1*q), math.Abs(e*q)) {
-				e = d
-				d = p / q
-			} else {
-				d = xm
-				e = d
-			}
-		} else {
-			d = xm
-			e = d
-		}
-		a, fa = b, fb
-		if math.Abs(d) > tol1 {
-			b += d
-		} else {
-			b += math.Copysign(tol1, xm)
-		}
-		fb = f(b)
-		evals++
-	}
-	return b, evals
-}
 
 // nativeScanBrent is the plain reference: f on a 200-point grid, Brent in
 // every cell with a sign change.
@@ -90,7 +31,7 @@ func nativeScanBrent(f func(float64) float64, lo, hi float64, roots []float64) (
 		case f0 == 0:
 			roots = append(roots, x0)
 		case f0*f1 < 0:
-			r, k := brent(f, x0, x1, f0, f1, 1e-12*math.Max(1, math.Abs(x0)))
+			r, k := nativeref.Brent(f, x0, x1, f0, f1, 1e-12*math.Max(1, math.Abs(x0)))
 			evals += k
 			roots = append(roots, r)
 		}
